@@ -1,0 +1,36 @@
+//! Command-line structures (clap derive). No logic: `settings` validates them,
+//! `commands` wires them. One file per subcommand's arguments.
+
+pub mod columns;
+pub mod demo;
+pub mod guard;
+pub mod limits;
+pub mod scan;
+pub mod watch;
+
+use clap::{Parser, Subcommand};
+
+/// Watch transient-simulation histories for numerical instability.
+#[derive(Debug, Parser)]
+#[command(name = "rhoscope", version, about, long_about = None)]
+pub struct Cli {
+    #[command(subcommand)]
+    pub command: Command,
+}
+
+/// The subcommands.
+#[derive(Debug, Subcommand)]
+pub enum Command {
+    /// Read a finished or crashed history and report its alarms.
+    Scan(scan::ScanArgs),
+    /// Show the role detected for each column of a history, and why.
+    Columns(columns::ColumnsArgs),
+    /// Stability limit and spectral radius of an integration scheme at a step.
+    Limits(limits::LimitsArgs),
+    /// Follow a growing history headless and act on a critical alarm.
+    Guard(guard::GuardArgs),
+    /// Live dashboard of one or several running histories.
+    Watch(watch::WatchArgs),
+    /// Run an invented simulation that goes unstable, watched and stopped.
+    Demo(demo::DemoArgs),
+}

@@ -1,0 +1,42 @@
+//! Wiring of each subcommand: argument structs in, exit code out. No domain logic.
+
+pub mod columns;
+pub mod demo;
+pub mod guard;
+pub mod limits;
+pub mod scan;
+pub mod watch;
+
+use clap::Parser;
+
+use crate::cli::{Cli, Command};
+
+/// Exit code for usage errors and unreadable input (monitoring-plugin convention: unknown).
+pub const EXIT_UNKNOWN: i32 = 3;
+
+/// Parse the process arguments and run; returns the exit code.
+pub fn run_from_env() -> i32 {
+    let cli = match Cli::try_parse() {
+        Ok(cli) => cli,
+        Err(e) => {
+            let code = if e.use_stderr() { EXIT_UNKNOWN } else { 0 };
+            let _ = e.print();
+            return code;
+        }
+    };
+    let result = match cli.command {
+        Command::Scan(a) => scan::run(a),
+        Command::Columns(a) => columns::run(a),
+        Command::Limits(a) => limits::run(a),
+        Command::Guard(a) => guard::run(a),
+        Command::Watch(a) => watch::run(a),
+        Command::Demo(a) => demo::run(a),
+    };
+    match result {
+        Ok(code) => code,
+        Err(e) => {
+            eprintln!("rhoscope: {e:#}");
+            EXIT_UNKNOWN
+        }
+    }
+}

@@ -1,0 +1,138 @@
+//! Online detectors: each one is fed rows in file order and may emit [`Finding`]s.
+//! Pure and causal: no clocks (arrival instants come in as data), no files; a
+//! decision at line L sees rows up to L only. The [`Engine`] owns one of each
+//! detector for the segment being read and keeps a [`Status`] of the latest
+//! estimates for the dashboard.
+
+pub mod nonfinite;
+
+use crate::alarm::Level;
+use crate::parse::roles::RoleMap;
+use crate::parse::Schema;
+
+/// One data row as the detectors see it.
+#[derive(Debug, Clone, Copy)]
+pub struct Sample<'a> {
+    /// 1-based physical line in the file.
+    pub line: u64,
+    /// One value per column of the current schema (non-finite kept as such).
+    pub values: &'a [f64],
+    /// Wall-clock arrival instant in seconds on a monotonic clock, when following live.
+    pub arrival_s: Option<f64>,
+}
+
+/// Quantitative evidence attached to a finding; every field optional.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct Evidence {
+    /// Spectral radius of the fitted map per output interval.
+    pub growth_per_output: Option<f64>,
+    /// Spectral radius per solver step (|μ|^(1/k) when output every k steps).
+    pub growth_per_step: Option<f64>,
+    /// Growth rate per unit simulated time (1/s).
+    pub growth_rate_per_s: Option<f64>,
+    /// Frequency of the dominant growing mode (Hz, simulated time).
+    pub frequency_hz: Option<f64>,
+    /// Energy balance error relative to the energy scale (fraction, signed; + = created).
+    pub balance_error: Option<f64>,
+    /// Solver steps until overflow.
+    pub forecast_steps: Option<f64>,
+    /// Simulated time at overflow.
+    pub forecast_time: Option<f64>,
+    /// Wall-clock seconds until overflow (live only).
+    pub forecast_wall_s: Option<f64>,
+    /// Line where the growing mode is estimated to have started.
+    pub onset_line: Option<u64>,
+    /// Simulated time of the onset.
+    pub onset_time: Option<f64>,
+    /// Stability margin at the observed frequency when the scheme is declared
+    /// (Ω_crit/Ω − 1; negative means past the limit).
+    pub stability_margin: Option<f64>,
+}
+
+/// What a detector concluded at one line.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Finding {
+    /// Detector name: `nonfinite`, `growth`, `energy`, `step`, `forecast`, ...
+    pub detector: &'static str,
+    /// `Ok` clears a condition this detector raised before (for hysteresis).
+    pub level: Level,
+    pub line: u64,
+    /// Simulated time at `line`, when a time column exists.
+    pub time: Option<f64>,
+    /// One sentence in the trade's words.
+    pub message: String,
+    pub evidence: Evidence,
+}
+
+/// Thresholds and options of the detectors (validated by `settings`).
+#[derive(Debug, Clone, PartialEq)]
+pub struct DetectSettings {
+    /// Relative energy balance error that raises a warning (fraction; default 0.05).
+    pub balance_warning: f64,
+    /// Magnitude treated as overflow for the forecast (default f64::MAX).
+    pub overflow_bound: f64,
+    /// Declared integration scheme, if any (name as `rhoscope limits` takes it).
+    pub scheme: Option<String>,
+}
+
+impl Default for DetectSettings {
+    fn default() -> Self {
+        Self {
+            balance_warning: 0.05,
+            overflow_bound: f64::MAX,
+            scheme: None,
+        }
+    }
+}
+
+/// Latest estimates, for the dashboard and the report.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct Status {
+    pub evidence: Evidence,
+}
+
+/// An online detector.
+pub trait Detector {
+    /// Short name used in alarms.
+    fn name(&self) -> &'static str;
+    /// Feed one row; push any findings to `out`.
+    fn feed(&mut self, sample: &Sample, out: &mut Vec<Finding>);
+    /// Contribute the latest estimates to the status.
+    fn status(&self, _status: &mut Status) {}
+}
+
+/// All detectors for one segment.
+pub struct Engine {
+    detectors: Vec<Box<dyn Detector + Send>>,
+    status: Status,
+}
+
+impl Engine {
+    /// Detectors for a segment with this schema and these roles.
+    pub fn new(schema: &Schema, roles: &RoleMap, settings: &DetectSettings) -> Self {
+        let _ = settings;
+        let detectors: Vec<Box<dyn Detector + Send>> =
+            vec![Box::new(nonfinite::NonFinite::new(schema, roles))];
+        Self {
+            detectors,
+            status: Status::default(),
+        }
+    }
+
+    /// Feed one row to every detector; findings are appended to `out`.
+    pub fn feed(&mut self, sample: &Sample, out: &mut Vec<Finding>) {
+        for d in &mut self.detectors {
+            d.feed(sample, out);
+        }
+    }
+
+    /// Latest estimates of all detectors.
+    pub fn status(&mut self) -> &Status {
+        let mut s = Status::default();
+        for d in &self.detectors {
+            d.status(&mut s);
+        }
+        self.status = s;
+        &self.status
+    }
+}

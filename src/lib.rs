@@ -1,0 +1,24 @@
+//! rhoscope follows the time-history file that a running transient solver writes,
+//! estimates the effective amplification of its time integration from successive
+//! states, checks the energy balance and the step size, forecasts overflow, and
+//! warns (or stops the run, as the user chose) before cluster hours are wasted.
+//!
+//! Data flows one way: bytes → rows ([`parse`]) → detectors ([`detect`]) →
+//! alarms ([`alarm`]) → report, guard actions or dashboard.
+
+pub mod act;
+pub mod alarm;
+pub mod app;
+pub mod cli;
+pub mod commands;
+pub mod demo;
+pub mod detect;
+pub mod history;
+pub mod parse;
+pub mod pipeline;
+pub mod report;
+pub mod schemes;
+pub mod settings;
+pub mod source;
+pub mod tui;
+pub mod ui;

@@ -1,0 +1,1 @@
+//! Terminal enter/restore, panic hook and signal handling for the dashboard.
