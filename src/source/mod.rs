@@ -1,1 +1,193 @@
-//! (module under construction)
+//! Where bytes come from while a run is followed live. [`Follower`] follows a
+//! growing file on disk (local or on a cluster filesystem) by polling what is
+//! reliable — size, device and inode, with a periodic reopen — and uses kernel
+//! notifications on the parent directory only as a wake-up hint. [`Scripted`] is a
+//! fake source that plays a fixed script, for tests of guard and the dashboard.
+//! Sources only read: they never write, lock or truncate the followed file.
+//! They hand out raw bytes; splitting into lines is the pipeline's job.
+
+mod fake;
+mod follow;
+mod hint;
+
+pub use fake::{Scripted, Step};
+pub use follow::{FollowConfig, Follower};
+
+use std::io;
+use std::sync::atomic::{AtomicBool, Ordering};
+use std::sync::mpsc::Sender;
+use std::sync::Arc;
+use std::thread::JoinHandle;
+use std::time::{Duration, Instant};
+
+/// Why the followed file must be read again from its start.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum RestartReason {
+    /// The file became shorter than what was already read (truncated in place).
+    Truncated,
+    /// Another file now has the name (rename over it, or delete and re-create).
+    Replaced,
+    /// Same file, but its first bytes changed (rewritten from the start).
+    Rewritten,
+}
+
+impl RestartReason {
+    /// Short words for logs.
+    pub fn describe(self) -> &'static str {
+        match self {
+            RestartReason::Truncated => "file truncated",
+            RestartReason::Replaced => "file replaced",
+            RestartReason::Rewritten => "file rewritten from its start",
+        }
+    }
+}
+
+/// What a source has to report.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub enum Event {
+    /// The file exists now (first seen); reading starts at its beginning.
+    Appeared,
+    /// New bytes, in file order, continuing the previous ones.
+    Data(Vec<u8>),
+    /// Forget any partial line; the following data is a new file's start.
+    Restart(RestartReason),
+    /// The name no longer leads to a file; what was read is kept.
+    Missing,
+}
+
+/// A source of bytes that can be polled without blocking.
+pub trait Source {
+    /// The next thing that happened, or `None` when nothing is new right now.
+    /// Never blocks for long: a backlog comes out as a series of `Data` events.
+    fn poll(&mut self) -> io::Result<Option<Event>>;
+
+    /// Sleep until something may have changed (a notification, or the poll
+    /// period elapsed), for at most `max`.
+    fn wait(&mut self, max: Duration);
+}
+
+/// A message from a source thread: the event and when it was read.
+#[derive(Debug, Clone)]
+pub struct SourceMsg {
+    pub event: Result<Event, String>,
+    pub at: Instant,
+}
+
+/// Handle to a source running on its own thread; dropping it does not stop
+/// the thread, call [`SourceThread::stop`].
+pub struct SourceThread {
+    stop: Arc<AtomicBool>,
+    handle: Option<JoinHandle<()>>,
+}
+
+impl SourceThread {
+    /// Ask the thread to end and wait for it (at most one poll period).
+    pub fn stop(mut self) {
+        self.stop.store(true, Ordering::Relaxed);
+        if let Some(h) = self.handle.take() {
+            let _ = h.join();
+        }
+    }
+}
+
+/// Poll `source` on a thread and send every event into `tx`, wrapped with the
+/// instant it was read. The thread ends when `tx`'s receiver is dropped or on
+/// [`SourceThread::stop`]. `max_wait` bounds each sleep (and so the stop delay).
+pub fn spawn<S, M>(
+    mut source: S,
+    tx: Sender<M>,
+    wrap: fn(SourceMsg) -> M,
+    max_wait: Duration,
+) -> SourceThread
+where
+    S: Source + Send + 'static,
+    M: Send + 'static,
+{
+    let stop = Arc::new(AtomicBool::new(false));
+    let flag = Arc::clone(&stop);
+    let handle = std::thread::spawn(move || {
+        while !flag.load(Ordering::Relaxed) {
+            match source.poll() {
+                Ok(Some(event)) => {
+                    let msg = SourceMsg {
+                        event: Ok(event),
+                        at: Instant::now(),
+                    };
+                    if tx.send(wrap(msg)).is_err() {
+                        return;
+                    }
+                }
+                Ok(None) => source.wait(max_wait),
+                Err(e) => {
+                    let msg = SourceMsg {
+                        event: Err(e.to_string()),
+                        at: Instant::now(),
+                    };
+                    if tx.send(wrap(msg)).is_err() {
+                        return;
+                    }
+                    source.wait(max_wait);
+                }
+            }
+        }
+    });
+    SourceThread {
+        stop,
+        handle: Some(handle),
+    }
+}
+
+/// Strip NUL bytes (left by a writer that kept its offset across a truncation).
+/// Returns the input unchanged when there are none.
+pub fn strip_nul(bytes: Vec<u8>) -> Vec<u8> {
+    if memchr::memchr(0, &bytes).is_none() {
+        return bytes;
+    }
+    bytes.into_iter().filter(|&b| b != 0).collect()
+}
+
+#[cfg(test)]
+mod tests {
+    #![allow(clippy::unwrap_used)]
+    use super::*;
+
+    #[test]
+    fn nul_runs_are_removed_and_newlines_kept() {
+        let v = strip_nul(b"\0\0\0a,1\n\0b,2\n".to_vec());
+        assert_eq!(v, b"a,1\nb,2\n");
+        assert_eq!(strip_nul(b"x\n".to_vec()), b"x\n");
+    }
+
+    #[test]
+    fn spawned_source_delivers_script_in_order() {
+        let src = Scripted::new(vec![
+            Step::Event(Event::Appeared),
+            Step::Event(Event::Data(b"1\n".to_vec())),
+            Step::Quiet,
+            Step::Event(Event::Data(b"2\n".to_vec())),
+        ]);
+        let (tx, rx) = std::sync::mpsc::channel();
+        let th = spawn(src, tx, |m| m, Duration::from_millis(5));
+        let mut got = Vec::new();
+        for _ in 0..3 {
+            got.push(
+                rx.recv_timeout(Duration::from_secs(10))
+                    .unwrap()
+                    .event
+                    .unwrap(),
+            );
+        }
+        th.stop();
+        assert_eq!(
+            got,
+            vec![
+                Event::Appeared,
+                Event::Data(b"1\n".to_vec()),
+                Event::Data(b"2\n".to_vec())
+            ]
+        );
+    }
+}
+
+#[cfg(test)]
+mod follow_tests;

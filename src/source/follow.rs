@@ -1,0 +1,283 @@
+//! Follow one growing file by name. Every poll reads what was appended since the
+//! saved offset (positioned reads, so the file's own state is never touched).
+//! Once per poll interval, or when a notification hints at a change, the name is
+//! opened afresh — a fresh open makes network filesystems revalidate cached
+//! attributes — and compared with what is held: device and inode, size against
+//! the offset, and fingerprints of the first bytes and of the bytes just before
+//! the offset. From that it decides: same file (continue), truncated (restart),
+//! rewritten (restart), replaced (read the new file from its start), moved to a
+//! new inode with the same content (continue at the offset), or gone (keep what
+//! was read and wait for a file to come back). Modification times are not used:
+//! on cluster filesystems they can be stale for minutes.
+
+use std::collections::VecDeque;
+use std::fs::File;
+use std::io;
+use std::os::unix::fs::{FileExt, MetadataExt};
+use std::path::{Path, PathBuf};
+use std::time::{Duration, Instant};
+
+use super::hint::Hint;
+use super::{strip_nul, Event, RestartReason, Source};
+
+/// Bytes of the file's start kept as its fingerprint.
+const HEAD_BYTES: usize = 512;
+/// Bytes before the offset kept to recognise the same content under a new inode.
+const TAIL_BYTES: usize = 64;
+
+/// How a [`Follower`] polls.
+#[derive(Debug, Clone, PartialEq)]
+pub struct FollowConfig {
+    /// Period of the full check (fresh open, identity, size). Default 1 s.
+    pub poll_interval: Duration,
+    /// Use kernel notifications on the parent directory as a wake-up hint.
+    pub notify: bool,
+    /// Largest read per poll; a backlog comes out in chunks of this size.
+    pub chunk_bytes: usize,
+}
+
+impl Default for FollowConfig {
+    fn default() -> Self {
+        Self {
+            poll_interval: Duration::from_secs(1),
+            notify: true,
+            chunk_bytes: 1 << 20,
+        }
+    }
+}
+
+/// Follows a file by name; see the module documentation.
+pub struct Follower {
+    path: PathBuf,
+    cfg: FollowConfig,
+    file: Option<File>,
+    id: Option<(u64, u64)>,
+    offset: u64,
+    head: Vec<u8>,
+    tail: Vec<u8>,
+    seen: bool,
+    missing: bool,
+    hinted: bool,
+    last_check: Option<Instant>,
+    pending: VecDeque<Event>,
+    hint: Option<Hint>,
+    buf: Vec<u8>,
+}
+
+impl Follower {
+    /// Follow `path` (which need not exist yet).
+    pub fn new(path: impl Into<PathBuf>, cfg: FollowConfig) -> Self {
+        let path = path.into();
+        let hint = if cfg.notify { Hint::new(&path) } else { None };
+        Self {
+            path,
+            cfg,
+            file: None,
+            id: None,
+            offset: 0,
+            head: Vec::new(),
+            tail: Vec::new(),
+            seen: false,
+            missing: false,
+            hinted: false,
+            last_check: None,
+            pending: VecDeque::new(),
+            hint,
+            buf: Vec::new(),
+        }
+    }
+
+    /// The followed path.
+    pub fn path(&self) -> &Path {
+        &self.path
+    }
+
+    /// Bytes read from the current file so far.
+    pub fn offset(&self) -> u64 {
+        self.offset
+    }
+
+    /// True when kernel notifications are in use as a wake-up hint.
+    pub fn notified(&self) -> bool {
+        self.hint.is_some()
+    }
+
+    fn periodic_check_due(&self) -> bool {
+        self.file.is_none()
+            || self
+                .last_check
+                .is_none_or(|t| t.elapsed() >= self.cfg.poll_interval)
+    }
+
+    fn adopt(&mut self, file: File, id: (u64, u64), restart: Option<RestartReason>) {
+        self.file = Some(file);
+        self.id = Some(id);
+        if let Some(r) = restart {
+            self.offset = 0;
+            self.head.clear();
+            self.tail.clear();
+            self.pending.push_back(Event::Restart(r));
+        }
+    }
+
+    /// True when `file` holds `expect` at `at`.
+    fn holds(file: &File, at: u64, expect: &[u8]) -> io::Result<bool> {
+        if expect.is_empty() {
+            return Ok(true);
+        }
+        let mut got = vec![0u8; expect.len()];
+        let mut done = 0;
+        while done < got.len() {
+            match file.read_at(&mut got[done..], at + done as u64) {
+                Ok(0) => return Ok(false),
+                Ok(n) => done += n,
+                Err(e) if e.kind() == io::ErrorKind::Interrupted => {}
+                Err(e) => return Err(e),
+            }
+        }
+        Ok(got == expect)
+    }
+
+    fn same_content(&self, file: &File, size: u64) -> io::Result<bool> {
+        let tail_at = self.offset - self.tail.len() as u64;
+        Ok(size >= self.offset
+            && Self::holds(file, 0, &self.head)?
+            && Self::holds(file, tail_at, &self.tail)?)
+    }
+
+    /// Open the name afresh and decide what became of the file.
+    fn check(&mut self) -> io::Result<()> {
+        self.hinted = false;
+        self.last_check = Some(Instant::now());
+        let file = match File::open(&self.path) {
+            Ok(f) => f,
+            Err(e) if e.kind() == io::ErrorKind::NotFound => {
+                if self.seen && !self.missing {
+                    self.missing = true;
+                    self.pending.push_back(Event::Missing);
+                }
+                return Ok(());
+            }
+            Err(e) => {
+                return Err(io::Error::new(
+                    e.kind(),
+                    format!("cannot open '{}': {e}", self.path.display()),
+                ))
+            }
+        };
+        let meta = file.metadata()?;
+        let id = (meta.dev(), meta.ino());
+        let size = meta.len();
+        let was_missing = std::mem::replace(&mut self.missing, false);
+        match self.id {
+            None => {
+                self.seen = true;
+                self.adopt(file, id, None);
+                self.pending.push_back(Event::Appeared);
+            }
+            Some(old) if old != id => {
+                if !was_missing && self.same_content(&file, size)? {
+                    // Same bytes under a new inode (moved or migrated): continue.
+                    self.adopt(file, id, None);
+                } else {
+                    self.adopt(file, id, Some(RestartReason::Replaced));
+                }
+            }
+            Some(_) => {
+                if size < self.offset {
+                    self.adopt(file, id, Some(RestartReason::Truncated));
+                } else if !Self::holds(&file, 0, &self.head)? {
+                    self.adopt(file, id, Some(RestartReason::Rewritten));
+                } else {
+                    self.adopt(file, id, None);
+                }
+            }
+        }
+        Ok(())
+    }
+
+    /// Read what follows the offset, up to one chunk.
+    fn read_more(&mut self) -> io::Result<Option<Vec<u8>>> {
+        let Some(file) = self.file.as_ref() else {
+            return Ok(None);
+        };
+        self.buf.resize(self.cfg.chunk_bytes.max(1), 0);
+        let n = loop {
+            match file.read_at(&mut self.buf, self.offset) {
+                Ok(n) => break n,
+                Err(e) if e.kind() == io::ErrorKind::Interrupted => {}
+                Err(e) => return Err(e),
+            }
+        };
+        if n == 0 {
+            // At the end: a size below the offset means truncation in place.
+            if file.metadata()?.len() < self.offset {
+                self.offset = 0;
+                self.head.clear();
+                self.tail.clear();
+                self.pending.push_back(Event::Restart(RestartReason::Truncated));
+            }
+            return Ok(None);
+        }
+        let data = &self.buf[..n];
+        if self.head.len() < HEAD_BYTES && self.offset == self.head.len() as u64 {
+            let take = (HEAD_BYTES - self.head.len()).min(n);
+            self.head.extend_from_slice(&data[..take]);
+        }
+        if n >= TAIL_BYTES {
+            self.tail.clear();
+            self.tail.extend_from_slice(&data[n - TAIL_BYTES..]);
+        } else {
+            self.tail.extend_from_slice(data);
+            let excess = self.tail.len().saturating_sub(TAIL_BYTES);
+            self.tail.drain(..excess);
+        }
+        self.offset += n as u64;
+        Ok(Some(strip_nul(data.to_vec())))
+    }
+}
+
+impl Source for Follower {
+    fn poll(&mut self) -> io::Result<Option<Event>> {
+        if let Some(e) = self.pending.pop_front() {
+            return Ok(Some(e));
+        }
+        if self.periodic_check_due() {
+            self.check()?;
+            if let Some(e) = self.pending.pop_front() {
+                return Ok(Some(e));
+            }
+        }
+        if let Some(data) = self.read_more()? {
+            // Data explains a hint; no need for a fresh open.
+            self.hinted = false;
+            return Ok(Some(Event::Data(data)));
+        }
+        if self.hinted {
+            // Woken but nothing appended: maybe a rename, deletion or re-creation.
+            self.check()?;
+            if self.pending.is_empty() {
+                if let Some(data) = self.read_more()? {
+                    return Ok(Some(Event::Data(data)));
+                }
+            }
+        }
+        Ok(self.pending.pop_front())
+    }
+
+    fn wait(&mut self, max: Duration) {
+        let since = self.last_check.map_or(Duration::MAX, |t| t.elapsed());
+        let d = self.cfg.poll_interval.saturating_sub(since).min(max);
+        if d.is_zero() {
+            return;
+        }
+        match &self.hint {
+            Some(h) => {
+                if h.wait(d) {
+                    self.hinted = true;
+                }
+            }
+            None => std::thread::sleep(d),
+        }
+    }
+}
