@@ -256,10 +256,10 @@ impl Source for Follower {
         if self.hinted {
             // Woken but nothing appended: maybe a rename, deletion or re-creation.
             self.check()?;
-            if self.pending.is_empty() {
-                if let Some(data) = self.read_more()? {
-                    return Ok(Some(Event::Data(data)));
-                }
+            if self.pending.is_empty()
+                && let Some(data) = self.read_more()?
+            {
+                return Ok(Some(Event::Data(data)));
             }
         }
         Ok(self.pending.pop_front())
