@@ -48,10 +48,7 @@ pub struct AlarmBook {
 impl AlarmBook {
     /// Process one finding; returns the alarm it raises, if any.
     pub fn take(&mut self, f: &Finding) -> Option<Alarm> {
-        let current = self
-            .active
-            .iter()
-            .position(|(d, _)| *d == f.detector);
+        let current = self.active.iter().position(|(d, _)| *d == f.detector);
         let prev = current.map(|i| self.active[i].1).unwrap_or(Level::Ok);
         match current {
             Some(i) => self.active[i].1 = f.level,

@@ -7,8 +7,8 @@
 pub mod nonfinite;
 
 use crate::alarm::Level;
-use crate::parse::roles::RoleMap;
 use crate::parse::Schema;
+use crate::parse::roles::RoleMap;
 
 /// One data row as the detectors see it.
 #[derive(Debug, Clone, Copy)]

@@ -2,8 +2,8 @@
 //! turns NaN, infinite, or overflows its print field.
 
 use super::{Detector, Finding, Sample};
-use crate::parse::roles::RoleMap;
 use crate::parse::Schema;
+use crate::parse::roles::RoleMap;
 
 /// Watches every column for the turn from finite to non-finite.
 pub struct NonFinite {

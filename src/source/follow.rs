@@ -18,7 +18,7 @@ use std::path::{Path, PathBuf};
 use std::time::{Duration, Instant};
 
 use super::hint::Hint;
-use super::{strip_nul, Event, RestartReason, Source};
+use super::{Event, RestartReason, Source, strip_nul};
 
 /// Bytes of the file's start kept as its fingerprint.
 const HEAD_BYTES: usize = 512;
@@ -162,7 +162,7 @@ impl Follower {
                 return Err(io::Error::new(
                     e.kind(),
                     format!("cannot open '{}': {e}", self.path.display()),
-                ))
+                ));
             }
         };
         let meta = file.metadata()?;
@@ -215,7 +215,8 @@ impl Follower {
                 self.offset = 0;
                 self.head.clear();
                 self.tail.clear();
-                self.pending.push_back(Event::Restart(RestartReason::Truncated));
+                self.pending
+                    .push_back(Event::Restart(RestartReason::Truncated));
             }
             return Ok(None);
         }

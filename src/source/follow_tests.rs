@@ -145,10 +145,7 @@ fn deletion_keeps_what_was_read_and_a_new_file_is_read_from_its_start() {
     append(&p, b"t,e\n0,1\n");
     assert_eq!(
         drain(&mut f),
-        vec![
-            Event::Restart(RestartReason::Replaced),
-            data(b"t,e\n0,1\n")
-        ]
+        vec![Event::Restart(RestartReason::Replaced), data(b"t,e\n0,1\n")]
     );
 }
 
@@ -187,7 +184,10 @@ fn a_backlog_comes_out_whole_in_chunks() {
             got.extend_from_slice(&d);
         }
     }
-    assert!(chunks > 1, "a backlog larger than a chunk takes several reads");
+    assert!(
+        chunks > 1,
+        "a backlog larger than a chunk takes several reads"
+    );
     assert_eq!(got, all);
     assert_eq!(f.offset(), all.len() as u64);
 }

@@ -14,9 +14,9 @@ pub use fake::{Scripted, Step};
 pub use follow::{FollowConfig, Follower};
 
 use std::io;
+use std::sync::Arc;
 use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::mpsc::Sender;
-use std::sync::Arc;
 use std::thread::JoinHandle;
 use std::time::{Duration, Instant};
 
