@@ -1,2 +1,234 @@
 //! Bytes → rows → detectors → alarms, in one object shared by `scan`, `guard`
-//! and `watch`, so that they give the same alarms, line for line, on the same bytes.
+//! and `watch`, so that they give the same alarms, line for line, on the same
+//! bytes. The pipeline owns the [`Reader`], the detector [`Engine`] of the current
+//! segment and the [`AlarmBook`]; everything it learns goes to a [`PipelineSink`].
+//! No I/O and no clocks: arrival instants come in as data.
+
+use crate::alarm::{Alarm, AlarmBook};
+use crate::detect::{DetectSettings, Engine, Finding, Sample, Status};
+use crate::parse::roles::{RoleMap, RoleRules, assign};
+use crate::parse::{Reader, RowSink, Schema, SegmentReason, SkipReason};
+use crate::settings::Settings;
+
+/// Receives, in file order, what the pipeline finds. Only `alarm` is required.
+pub trait PipelineSink {
+    /// A raised alarm (one per raise, not one per row).
+    fn alarm(&mut self, alarm: &Alarm);
+    /// A schema (with the roles of its columns) applies from `line` on.
+    fn schema(&mut self, _line: u64, _schema: &Schema, _roles: &RoleMap) {}
+    /// A data row at 1-based physical `line`, before the alarms it raises.
+    fn row(&mut self, _line: u64, _values: &[f64]) {}
+    /// A new segment (restart) begins at `line`.
+    fn segment(&mut self, _line: u64, _reason: SegmentReason) {}
+    /// A line was skipped (or noted); counted, never fatal.
+    fn skipped(&mut self, _line: u64, _reason: &SkipReason) {}
+}
+
+/// A sink that ignores everything (for callers that only want [`Pipeline::status`]).
+impl PipelineSink for () {
+    fn alarm(&mut self, _alarm: &Alarm) {}
+}
+
+/// Collects alarms into a vector.
+impl PipelineSink for Vec<Alarm> {
+    fn alarm(&mut self, alarm: &Alarm) {
+        self.push(alarm.clone());
+    }
+}
+
+/// Reader + detectors + alarm book. See the module documentation.
+pub struct Pipeline {
+    reader: Reader,
+    state: State,
+}
+
+struct State {
+    detect: DetectSettings,
+    rules: RoleRules,
+    schema: Schema,
+    roles: RoleMap,
+    engine: Option<Engine>,
+    book: AlarmBook,
+    findings: Vec<Finding>,
+    rows: u64,
+    skipped: u64,
+    empty: Status,
+}
+
+struct Adapter<'a> {
+    state: &'a mut State,
+    out: &'a mut dyn PipelineSink,
+    arrival_s: Option<f64>,
+}
+
+impl RowSink for Adapter<'_> {
+    fn schema(&mut self, line: u64, schema: &Schema) {
+        let s = &mut *self.state;
+        s.schema = schema.clone();
+        s.roles = assign(schema, &s.rules);
+        s.engine = Some(Engine::new(&s.schema, &s.roles, &s.detect));
+        s.book.reset();
+        self.out.schema(line, &s.schema, &s.roles);
+    }
+
+    fn row(&mut self, line: u64, values: &[f64]) {
+        let s = &mut *self.state;
+        s.rows += 1;
+        self.out.row(line, values);
+        let Some(engine) = s.engine.as_mut() else {
+            return;
+        };
+        let sample = Sample {
+            line,
+            values,
+            arrival_s: self.arrival_s,
+        };
+        engine.feed(&sample, &mut s.findings);
+        for f in s.findings.drain(..) {
+            if let Some(a) = s.book.take(&f) {
+                self.out.alarm(&a);
+            }
+        }
+    }
+
+    fn segment(&mut self, line: u64, reason: SegmentReason) {
+        let s = &mut *self.state;
+        if s.engine.is_some() {
+            s.engine = Some(Engine::new(&s.schema, &s.roles, &s.detect));
+        }
+        s.book.reset();
+        self.out.segment(line, reason);
+    }
+
+    fn skipped(&mut self, line: u64, reason: SkipReason) {
+        if !reason.is_note() {
+            self.state.skipped += 1;
+        }
+        self.out.skipped(line, &reason);
+    }
+}
+
+impl Pipeline {
+    /// A pipeline reading with these settings.
+    pub fn new(settings: &Settings) -> Pipeline {
+        Pipeline {
+            reader: Reader::new(&settings.parse, &settings.roles),
+            state: State {
+                detect: settings.detect.clone(),
+                rules: settings.roles.clone(),
+                schema: Schema::default(),
+                roles: RoleMap::default(),
+                engine: None,
+                book: AlarmBook::default(),
+                findings: Vec::new(),
+                rows: 0,
+                skipped: 0,
+                empty: Status::default(),
+            },
+        }
+    }
+
+    /// Feed the next bytes of the file; `arrival_s` = monotonic seconds when following live.
+    pub fn feed(&mut self, bytes: &[u8], arrival_s: Option<f64>, out: &mut dyn PipelineSink) {
+        let mut a = Adapter {
+            state: &mut self.state,
+            out,
+            arrival_s,
+        };
+        self.reader.feed(bytes, &mut a);
+    }
+
+    /// End of input (scan): a last line without newline is read as a row.
+    pub fn finish(&mut self, out: &mut dyn PipelineSink) {
+        let mut a = Adapter {
+            state: &mut self.state,
+            out,
+            arrival_s: None,
+        };
+        self.reader.finish(&mut a);
+    }
+
+    /// The followed file was truncated or replaced: drop any partial line, start a new segment.
+    pub fn restart(&mut self, out: &mut dyn PipelineSink) {
+        let mut a = Adapter {
+            state: &mut self.state,
+            out,
+            arrival_s: None,
+        };
+        self.reader.restart(&mut a);
+        self.state.engine = None;
+    }
+
+    /// Latest detector estimates (for the dashboard).
+    pub fn status(&mut self) -> &Status {
+        match self.state.engine.as_mut() {
+            Some(e) => e.status(),
+            None => &self.state.empty,
+        }
+    }
+
+    /// Data rows read so far.
+    pub fn rows(&self) -> u64 {
+        self.state.rows
+    }
+
+    /// Lines skipped so far (notes such as a Latin-1 header are not counted).
+    pub fn skipped(&self) -> u64 {
+        self.state.skipped
+    }
+
+    /// Physical lines completed so far.
+    pub fn lines(&self) -> u64 {
+        self.reader.lines()
+    }
+
+    /// The schema of the current segment (empty before the first header or row).
+    pub fn schema(&self) -> &Schema {
+        &self.state.schema
+    }
+
+    /// The roles of the current schema's columns.
+    pub fn roles(&self) -> &RoleMap {
+        &self.state.roles
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::alarm::Level;
+
+    #[test]
+    fn alarms_are_the_same_however_the_bytes_arrive() {
+        let text = b"# demo\ntime,ke\n0,1\n0.1,2\n0.2,nan\n0.3,nan\n";
+        let whole = {
+            let mut p = Pipeline::new(&Settings::default());
+            let mut out: Vec<Alarm> = Vec::new();
+            p.feed(text, None, &mut out);
+            p.finish(&mut out);
+            assert_eq!(p.rows(), 4);
+            out
+        };
+        let mut p = Pipeline::new(&Settings::default());
+        let mut out: Vec<Alarm> = Vec::new();
+        for b in text.chunks(1) {
+            p.feed(b, Some(0.0), &mut out);
+        }
+        p.finish(&mut out);
+        assert_eq!(whole.len(), 1);
+        assert_eq!(whole[0].level, Level::Critical);
+        assert_eq!(whole[0].line, 5);
+        assert_eq!(out, whole);
+    }
+
+    #[test]
+    fn restart_resets_the_segment() {
+        let mut p = Pipeline::new(&Settings::default());
+        let mut out: Vec<Alarm> = Vec::new();
+        p.feed(b"t x\n0 1\n1 nan\n", None, &mut out);
+        p.restart(&mut out);
+        p.feed(b"t x\n0 1\n1 inf\n", None, &mut out);
+        assert_eq!(out.len(), 2);
+        assert_eq!(out[1].line, 3);
+    }
+}

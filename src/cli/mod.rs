@@ -4,6 +4,7 @@
 pub mod columns;
 pub mod demo;
 pub mod guard;
+pub mod input;
 pub mod limits;
 pub mod scan;
 pub mod watch;

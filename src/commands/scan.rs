@@ -1,8 +1,134 @@
-//! `rhoscope scan`: wiring only.
+//! `rhoscope scan`: read a finished or crashed history through the pipeline and
+//! print the report (text, or JSON for scripts); the exit code is the status.
+
+use std::io::{IsTerminal, Read, Write};
+use std::path::Path;
+
+use anyhow::{Context, bail};
 
 use crate::cli::scan::ScanArgs;
+use crate::pipeline::{Pipeline, PipelineSink};
+use crate::report::{ReportBuilder, ScanReport};
+use crate::settings::Settings;
+
+/// Files at least this large get a progress bar (when stderr is a terminal).
+const PROGRESS_MIN_BYTES: u64 = 64 << 20;
+
+/// Bytes read per call.
+const CHUNK_BYTES: usize = 1 << 20;
 
 /// Run `rhoscope scan`; returns the exit code.
-pub fn run(_args: ScanArgs) -> anyhow::Result<i32> {
-    anyhow::bail!("'scan' is not built yet")
+pub fn run(args: ScanArgs) -> anyhow::Result<i32> {
+    let settings = Settings::load(&args.input, &args.file)?;
+    for note in &settings.notes {
+        eprintln!("rhoscope: {note}");
+    }
+    let report = scan_path(&args.file, &settings, std::io::stderr().is_terminal())?;
+    let mut text = if args.json {
+        serde_json::to_vec(&report).context("cannot write the report")?
+    } else {
+        report.to_text().into_bytes()
+    };
+    if args.json {
+        text.push(b'\n');
+    }
+    write_stdout(&text)?;
+    Ok(report.exit_code())
+}
+
+/// Print text on stdout; a closed pipe (`| head`) is not an error.
+pub fn print(text: &str) -> anyhow::Result<()> {
+    write_stdout(text.as_bytes())
+}
+
+/// Write to stdout; a closed pipe (`| head`) is not an error.
+pub fn write_stdout(bytes: &[u8]) -> anyhow::Result<()> {
+    let mut out = std::io::stdout().lock();
+    match out.write_all(bytes).and_then(|()| out.flush()) {
+        Ok(()) => Ok(()),
+        Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => Ok(()),
+        Err(e) => Err(e).context("cannot write to stdout"),
+    }
+}
+
+/// Open `path` for reading as a history, with a one-line error naming the file.
+pub fn open_history(path: &Path) -> anyhow::Result<(std::fs::File, u64)> {
+    let meta =
+        std::fs::metadata(path).with_context(|| format!("{}: cannot open", path.display()))?;
+    if meta.is_dir() {
+        bail!("{}: is a directory, not a history file", path.display());
+    }
+    let file =
+        std::fs::File::open(path).with_context(|| format!("{}: cannot open", path.display()))?;
+    Ok((file, meta.len()))
+}
+
+/// Feed the whole file at `path` through `pipeline` into `sink`, streaming in
+/// chunks; returns the bytes read.
+pub fn feed_file(
+    path: &Path,
+    pipeline: &mut Pipeline,
+    sink: &mut dyn PipelineSink,
+    progress: bool,
+) -> anyhow::Result<u64> {
+    let (mut file, size) = open_history(path)?;
+    let bar = (progress && size >= PROGRESS_MIN_BYTES).then(|| {
+        let bar = indicatif::ProgressBar::with_draw_target(
+            Some(size),
+            indicatif::ProgressDrawTarget::stderr(),
+        );
+        if let Ok(style) = indicatif::ProgressStyle::with_template(
+            "{bar:40} {bytes}/{total_bytes} {binary_bytes_per_sec} eta {eta}",
+        ) {
+            bar.set_style(style);
+        }
+        bar
+    });
+    let mut buf = vec![0u8; CHUNK_BYTES];
+    let mut total = 0u64;
+    loop {
+        let n = match file.read(&mut buf) {
+            Ok(0) => break,
+            Ok(n) => n,
+            Err(e) if e.kind() == std::io::ErrorKind::Interrupted => continue,
+            Err(e) => {
+                return Err(e).with_context(|| format!("{}: read failed", path.display()));
+            }
+        };
+        total += n as u64;
+        pipeline.feed(&buf[..n], None, sink);
+        if let Some(b) = &bar {
+            b.set_position(total);
+        }
+    }
+    pipeline.finish(sink);
+    if let Some(b) = bar {
+        b.finish_and_clear();
+    }
+    Ok(total)
+}
+
+/// Scan the history at `path` into a report. A file that cannot be opened, or
+/// holds no data row, is an error (exit 3).
+pub fn scan_path(path: &Path, settings: &Settings, progress: bool) -> anyhow::Result<ScanReport> {
+    let mut pipeline = Pipeline::new(settings);
+    let mut builder = ReportBuilder::default();
+    let bytes = feed_file(path, &mut pipeline, &mut builder, progress)?;
+    if pipeline.rows() == 0 {
+        let what = if bytes == 0 {
+            "the file is empty".to_owned()
+        } else if pipeline.schema().columns.is_empty() {
+            format!("no header or data row in {} lines", pipeline.lines())
+        } else {
+            format!("a header but no data row in {} lines", pipeline.lines())
+        };
+        let skipped = if pipeline.skipped() > 0 {
+            format!(" ({} lines skipped as unreadable)", pipeline.skipped())
+        } else {
+            String::new()
+        };
+        bail!("{}: no data row: {what}{skipped}", path.display());
+    }
+    let file = path.display().to_string();
+    Ok(builder.finish(&file, pipeline.rows(), pipeline.skipped(), pipeline.lines()))
 }

@@ -3,7 +3,57 @@
 //! log lines through a user regex. It is fed byte slices and never does I/O; it
 //! reports rows, schemas, restarts (segments) and skipped lines to a [`RowSink`].
 
+pub mod delimited;
+pub mod header;
+pub mod jsonl;
+pub mod number;
+pub mod pattern;
+pub mod reader;
 pub mod roles;
+
+pub use reader::Reader;
+
+/// How fields of a delimited line are separated.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Delimiter {
+    /// One or more blanks (spaces, tabs).
+    Whitespace,
+    /// A single byte: `,`, `;` or tab.
+    Byte(u8),
+}
+
+/// The layout of the history file.
+#[derive(Debug, Clone, Default)]
+pub enum Format {
+    /// Detect from the first lines: JSON Lines when the first one is an object,
+    /// otherwise delimited text with the delimiter guessed.
+    #[default]
+    Auto,
+    /// Delimited text with this delimiter.
+    Delimited(Delimiter),
+    /// One JSON object per line; numeric fields become columns.
+    JsonLines,
+    /// Free-form log lines; the named capture groups of this regex are the
+    /// columns, lines that do not match are ignored.
+    Pattern(regex::bytes::Regex),
+}
+
+/// Options of the reader.
+#[derive(Debug, Clone)]
+pub struct ParseOptions {
+    pub format: Format,
+    /// Lines longer than this are skipped and reported (default 1 MiB).
+    pub max_line_bytes: usize,
+}
+
+impl Default for ParseOptions {
+    fn default() -> Self {
+        Self {
+            format: Format::Auto,
+            max_line_bytes: 1 << 20,
+        }
+    }
+}
 
 /// One column of a history file as named by its header (or `c1..cN`).
 #[derive(Debug, Clone, PartialEq, Eq)]
@@ -42,8 +92,39 @@ pub enum SkipReason {
     NotANumber { field: usize },
     /// The header line held bytes that are not UTF-8 (the row is not skipped; this is a note).
     NonUtf8Header,
+    /// The header names a different number of columns than the first row has; the
+    /// columns were renamed to fit the rows (a note; the row is read).
+    HeaderMismatch { names: usize, fields: usize },
     /// Anything else, explained.
     Other(String),
+}
+
+impl SkipReason {
+    /// True for notes that do not drop a row (they are not counted as skipped rows).
+    pub fn is_note(&self) -> bool {
+        matches!(
+            self,
+            SkipReason::NonUtf8Header | SkipReason::HeaderMismatch { .. }
+        )
+    }
+}
+
+impl std::fmt::Display for SkipReason {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            SkipReason::FieldCount { expected, found } => {
+                write!(f, "{found} fields where the header has {expected}")
+            }
+            SkipReason::TooLong { bytes } => write!(f, "line of {bytes} bytes is over the limit"),
+            SkipReason::NotANumber { field } => write!(f, "field {} is not a number", field + 1),
+            SkipReason::NonUtf8Header => write!(f, "header is not UTF-8; read as Latin-1"),
+            SkipReason::HeaderMismatch { names, fields } => write!(
+                f,
+                "header names {names} columns but rows have {fields}; unnamed ones are c1..cN"
+            ),
+            SkipReason::Other(s) => f.write_str(s),
+        }
+    }
 }
 
 /// Receives what the reader finds, in file order.

@@ -1,0 +1,43 @@
+//! Arguments shared by every command that reads a history: the file's layout,
+//! role and sign overrides, and the configuration file.
+
+use std::path::PathBuf;
+
+use clap::{Args, ValueEnum};
+
+/// How to read the history file.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum DelimiterArg {
+    Comma,
+    Semicolon,
+    Tab,
+    Whitespace,
+}
+
+/// Options for reading a history file.
+#[derive(Debug, Clone, Default, Args)]
+pub struct InputArgs {
+    /// Configuration file (TOML). Without it, `rhoscope.toml` beside the history
+    /// is read if present (but never its [actions]).
+    #[arg(long, value_name = "FILE")]
+    pub config: Option<PathBuf>,
+    /// Do not read `rhoscope.toml` beside the history.
+    #[arg(long)]
+    pub no_config: bool,
+    /// Field delimiter (default: guessed from the first lines).
+    #[arg(long, value_enum, value_name = "KIND")]
+    pub delimiter: Option<DelimiterArg>,
+    /// Read the file as JSON Lines (one object per line).
+    #[arg(long, conflicts_with_all = ["delimiter", "pattern"])]
+    pub jsonl: bool,
+    /// Read free-form log lines with this regex; each named group is a column,
+    /// e.g. 'step (?P<step>\d+) t=(?P<time>\S+)'.
+    #[arg(long, value_name = "REGEX", conflicts_with = "delimiter")]
+    pub pattern: Option<String>,
+    /// Give a column a role, e.g. --role 'E_hg=artificial' (repeatable).
+    #[arg(long = "role", value_name = "COLUMN=ROLE")]
+    pub roles: Vec<String>,
+    /// Sign with which an energy term enters the balance, e.g. --sign external_work=-1.
+    #[arg(long = "sign", value_name = "TERM=SIGN")]
+    pub signs: Vec<String>,
+}

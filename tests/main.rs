@@ -1,0 +1,5 @@
+//! The integration-test crate: one binary, one module per area.
+#![allow(clippy::unwrap_used)]
+
+mod parse_formats;
+mod scan_cli;
