@@ -1,5 +1,6 @@
 //! The integration-test crate: one binary, one module per area.
 #![allow(clippy::unwrap_used)]
 
+mod limits_cli;
 mod parse_formats;
 mod scan_cli;

@@ -27,7 +27,7 @@ pub enum Command {
     /// Show the role detected for each column of a history, and why.
     Columns(columns::ColumnsArgs),
     /// Stability limit and spectral radius of an integration scheme at a step.
-    Limits(limits::LimitsArgs),
+    Limits(Box<limits::LimitsArgs>),
     /// Follow a growing history headless and act on a critical alarm.
     Guard(guard::GuardArgs),
     /// Live dashboard of one or several running histories.

@@ -27,7 +27,7 @@ pub fn run_from_env() -> i32 {
     let result = match cli.command {
         Command::Scan(a) => scan::run(a),
         Command::Columns(a) => columns::run(a),
-        Command::Limits(a) => limits::run(a),
+        Command::Limits(a) => limits::run(*a),
         Command::Guard(a) => guard::run(a),
         Command::Watch(a) => watch::run(a),
         Command::Demo(a) => demo::run(a),
