@@ -1,0 +1,274 @@
+//! The dashboard's state: what has been read from the run, what the detectors
+//! estimate, the alarm events, the view (pause, zoom, probe shown, overlays) and
+//! the stop-the-run dialog. Changed only through [`AppState::update`]; the
+//! renderer reads it.
+
+use std::collections::VecDeque;
+use std::time::Duration;
+
+use crate::alarm::Level;
+use crate::detect::Evidence;
+use crate::history::Table;
+use crate::parse::Schema;
+use crate::parse::roles::{EnergyTerm, Role, RoleMap};
+
+use super::speed::Speed;
+
+/// Fixed settings of a dashboard session.
+#[derive(Debug, Clone, Default)]
+pub struct Config {
+    /// The followed file, as given.
+    pub file: String,
+    /// Draw with colours (off when `NO_COLOR` is set).
+    pub color: bool,
+    /// Simulated end time of the run, for progress and time to finish.
+    pub end_time_s: Option<f64>,
+    /// Wall-clock time the job had left when watching began.
+    pub wall_left_at_start: Option<Duration>,
+    /// Monotonic seconds when watching began.
+    pub started_s: f64,
+    /// What the stop key and a critical alarm do, one line per action, in order.
+    /// Empty: no action armed.
+    pub actions: Vec<String>,
+    /// Take the armed actions by themselves on a critical alarm (as `guard` does).
+    pub stop_on_critical: bool,
+    /// Rows kept at full resolution.
+    pub retention_rows: usize,
+}
+
+/// One line of the events list.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Event {
+    pub level: Level,
+    /// Where it came from: a detector name, `file`, `stop`, `you`.
+    pub source: String,
+    pub line: Option<u64>,
+    pub time: Option<f64>,
+    pub text: String,
+}
+
+/// Which overlay, if any, is open.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Dialog {
+    Help,
+    /// The stop-the-run confirmation (y/N).
+    ConfirmStop,
+}
+
+/// The stop-the-run actions: armed once, fired at most once.
+#[derive(Debug, Clone, PartialEq)]
+pub enum StopState {
+    /// Not fired.
+    Idle,
+    /// Sent to the action runner; waiting for its report.
+    Requested { reason: String },
+    /// The runner reported back.
+    Done { ok: bool, report: Vec<String> },
+}
+
+/// What the user sees of the run.
+#[derive(Debug, Clone, PartialEq)]
+pub struct View {
+    /// Frozen right edge of the time window while paused.
+    pub paused_at: Option<f64>,
+    /// 0 shows the whole run; each step in shows a quarter of the previous span.
+    pub zoom: u8,
+    /// Index into the probe columns of the chart of probe signals.
+    pub probe: usize,
+}
+
+/// Deepest zoom: 4⁻⁶ of the run.
+pub const MAX_ZOOM: u8 = 6;
+/// Events kept in the list.
+pub const MAX_EVENTS: usize = 500;
+
+/// Names of the derived (per-batch) series.
+pub const D_GROWTH: usize = 0;
+pub const D_BALANCE: usize = 1;
+pub const D_FORECAST_STEPS: usize = 2;
+
+/// The whole dashboard state.
+#[derive(Debug, Clone)]
+pub struct AppState {
+    pub config: Config,
+    pub schema: Schema,
+    pub roles: RoleMap,
+    /// The file's columns against x (time, or line number without a time column).
+    pub table: Table,
+    /// Detector estimates against x: growth per step, balance error, forecast steps.
+    pub derived: Table,
+    pub evidence: Evidence,
+    pub rows: u64,
+    pub skipped: u64,
+    pub segments: u32,
+    pub last_line: u64,
+    pub events: VecDeque<Event>,
+    /// Worst level raised in the current segment.
+    pub level: Level,
+    /// The unacknowledged alarm shown in the banner.
+    pub banner: Option<Event>,
+    pub view: View,
+    pub dialog: Option<Dialog>,
+    pub stop: StopState,
+    pub speed: Speed,
+    /// Monotonic seconds of the latest tick or data.
+    pub now_s: f64,
+    /// A note from the file follower (waiting for the file, read error).
+    pub note: Option<String>,
+    /// Something changed since the last frame.
+    pub dirty: bool,
+    /// The loop should end.
+    pub quit: bool,
+}
+
+impl AppState {
+    /// A fresh state before any data.
+    pub fn new(config: Config) -> Self {
+        let retention = if config.retention_rows == 0 {
+            crate::history::DEFAULT_RETENTION_ROWS
+        } else {
+            config.retention_rows
+        };
+        let now_s = config.started_s;
+        let config = Config {
+            retention_rows: retention,
+            ..config
+        };
+        Self {
+            schema: Schema::default(),
+            roles: RoleMap::default(),
+            table: Table::with_sizes(vec![], retention, crate::history::DEFAULT_ENVELOPE_BUCKETS),
+            derived: Table::with_sizes(
+                vec![
+                    "growth per step".into(),
+                    "energy balance error".into(),
+                    "steps to overflow".into(),
+                ],
+                retention,
+                crate::history::DEFAULT_ENVELOPE_BUCKETS,
+            ),
+            config,
+            evidence: Evidence::default(),
+            rows: 0,
+            skipped: 0,
+            segments: 0,
+            last_line: 0,
+            events: VecDeque::new(),
+            level: Level::Ok,
+            banner: None,
+            view: View {
+                paused_at: None,
+                zoom: 0,
+                probe: 0,
+            },
+            dialog: None,
+            stop: StopState::Idle,
+            speed: Speed::default(),
+            now_s,
+            note: None,
+            dirty: true,
+            quit: false,
+        }
+    }
+
+    /// Column with this role in the current schema.
+    pub fn col(&self, role: Role) -> Option<usize> {
+        self.roles.find(role)
+    }
+
+    /// True when x is simulated time (the file has a time column).
+    pub fn x_is_time(&self) -> bool {
+        self.col(Role::Time).is_some()
+    }
+
+    /// Energy columns present, with their terms, in file order.
+    pub fn energy_columns(&self) -> Vec<(usize, EnergyTerm)> {
+        self.roles
+            .roles
+            .iter()
+            .enumerate()
+            .filter_map(|(i, r)| match r {
+                Role::Energy(t) => Some((i, *t)),
+                _ => None,
+            })
+            .collect()
+    }
+
+    /// Probe columns, in file order.
+    pub fn probe_columns(&self) -> Vec<usize> {
+        self.roles.all(Role::Probe)
+    }
+
+    /// The probe column currently shown.
+    pub fn shown_probe(&self) -> Option<usize> {
+        let p = self.probe_columns();
+        if p.is_empty() {
+            None
+        } else {
+            p.get(self.view.probe % p.len()).copied()
+        }
+    }
+
+    /// Name of a column of the current schema.
+    pub fn column_name(&self, col: usize) -> &str {
+        self.schema
+            .columns
+            .get(col)
+            .map(|c| c.name.as_str())
+            .unwrap_or("?")
+    }
+
+    /// Latest simulated time.
+    pub fn time_now(&self) -> Option<f64> {
+        self.col(Role::Time).and_then(|c| self.table.last(c))
+    }
+
+    /// The x window drawn by the charts: the whole run, or the latest
+    /// 4^-zoom of it, ending at the newest row (or where the view was paused).
+    pub fn x_window(&self) -> Option<(f64, f64)> {
+        let (first, last) = self.table.x_range()?;
+        let hi = self.view.paused_at.unwrap_or(last).min(last);
+        let span = (hi - first) / 4f64.powi(i32::from(self.view.zoom));
+        let lo = (hi - span).max(first);
+        if hi > lo {
+            Some((lo, hi))
+        } else {
+            Some((lo, lo + 1.0))
+        }
+    }
+
+    /// Fraction of the run done, from the end time.
+    pub fn progress(&self) -> Option<f64> {
+        let end = self.config.end_time_s?;
+        let t = self.time_now()?;
+        (end > 0.0).then(|| (t / end).clamp(0.0, 1.0))
+    }
+
+    /// Wall-clock seconds to reach the end time at the recent pace.
+    pub fn time_to_finish_s(&self) -> Option<f64> {
+        let end = self.config.end_time_s?;
+        let t = self.time_now()?;
+        let pace = self.speed.sim_per_wall_s()?;
+        (pace > 0.0).then(|| ((end - t) / pace).max(0.0))
+    }
+
+    /// Wall-clock seconds the job has left now.
+    pub fn wall_left_s(&self) -> Option<f64> {
+        let left = self.config.wall_left_at_start?.as_secs_f64();
+        Some(left - (self.now_s - self.config.started_s).max(0.0))
+    }
+
+    /// Whether the run will reach its end time before its wall limit.
+    pub fn finishes_in_time(&self) -> Option<bool> {
+        Some(self.time_to_finish_s()? <= self.wall_left_s()?)
+    }
+
+    /// Record an event (bounded list, newest last).
+    pub fn push_event(&mut self, event: Event) {
+        if self.events.len() == MAX_EVENTS {
+            self.events.pop_front();
+        }
+        self.events.push_back(event);
+        self.dirty = true;
+    }
+}

@@ -1,0 +1,234 @@
+//! Growth panels: the growth per step (spectral radius of the fitted one-step
+//! map) over time with the stability line ρ = 1, and the readouts a
+//! practitioner asks for first — growth rate, dominant mode, onset, the
+//! overflow countdown and the stability margin of the declared scheme.
+
+use ratatui::Frame;
+use ratatui::layout::Rect;
+use ratatui::text::{Line, Span};
+use ratatui::widgets::{Block, Borders, Paragraph};
+
+use crate::alarm::Level;
+use crate::app::AppState;
+use crate::app::state::{D_BALANCE, D_GROWTH};
+
+use super::chart::{self, Series, Spec};
+use super::format::{count, duration, hz, num, pct};
+use super::theme::{Theme, symbol};
+
+/// Growth per step above which the readout is marked as growing.
+const GROWING: f64 = 1.0;
+
+/// Chart of the growth per step against the shared x window.
+pub fn chart(f: &mut Frame, area: Rect, s: &AppState, t: &Theme, x_labels: bool) {
+    let Some(x) = s.x_window() else {
+        chart::draw(
+            f,
+            area,
+            empty_spec(" growth per step ", "waiting for rows"),
+            t,
+        );
+        return;
+    };
+    let width = usize::from(area.width.saturating_sub(10)).max(1);
+    let points = s.derived.points(D_GROWTH, x.0, x.1, width);
+    let now = s.evidence.growth_per_step;
+    let lvl = growth_level(now);
+    let title = Line::from(vec![
+        Span::styled(" growth per step ", t.title()),
+        Span::styled(
+            format!("ρ {} {} ", num(now, 5), growth_words(now, area.width < 60)),
+            t.level(lvl),
+        ),
+    ]);
+    let spec = Spec {
+        title,
+        series: vec![Series {
+            name: "ρ per step".into(),
+            points,
+            style: t.series(0),
+        }],
+        x,
+        x_name: x_name(s),
+        x_labels,
+        reference: Some((1.0, "ρ = 1 stability limit")),
+        empty: "no estimate yet: the detectors need a window of rows",
+    };
+    chart::draw(f, area, spec, t);
+}
+
+/// Chart of the energy balance error against the shared x window.
+pub fn balance_chart(f: &mut Frame, area: Rect, s: &AppState, t: &Theme, x_labels: bool) {
+    let Some(x) = s.x_window() else {
+        chart::draw(
+            f,
+            area,
+            empty_spec(" energy balance error ", "waiting for rows"),
+            t,
+        );
+        return;
+    };
+    let width = usize::from(area.width.saturating_sub(10)).max(1);
+    let points = s.derived.points(D_BALANCE, x.0, x.1, width);
+    let spec = Spec {
+        title: Line::from(vec![
+            Span::styled(" energy balance error ", t.title()),
+            Span::raw(format!("{} ", pct(s.evidence.balance_error))),
+        ]),
+        series: vec![Series {
+            name: "(created − lost) / energy scale".into(),
+            points,
+            style: t.series(1),
+        }],
+        x,
+        x_name: x_name(s),
+        x_labels,
+        reference: Some((0.0, "balanced")),
+        empty: "no energy columns recognised",
+    };
+    chart::draw(f, area, spec, t);
+}
+
+pub(crate) fn empty_spec<'a>(title: &'a str, empty: &'a str) -> Spec<'a> {
+    Spec {
+        title: Line::from(title),
+        series: vec![],
+        x: (0.0, 1.0),
+        x_name: "",
+        x_labels: false,
+        reference: None,
+        empty,
+    }
+}
+
+pub(crate) fn x_name(s: &AppState) -> &'static str {
+    if s.x_is_time() { "t [s]" } else { "line" }
+}
+
+fn growth_level(rho: Option<f64>) -> Level {
+    match rho {
+        Some(r) if !r.is_finite() => Level::Critical,
+        Some(r) if r > GROWING => Level::Warning,
+        _ => Level::Ok,
+    }
+}
+
+fn growth_words(rho: Option<f64>, short: bool) -> &'static str {
+    match rho {
+        None => "",
+        Some(r) if !r.is_finite() => "✖ not finite",
+        Some(r) if r > GROWING && short => "▲ above 1",
+        Some(r) if r > GROWING => "▲ above 1: growing",
+        Some(_) if short => "✔ ≤ 1",
+        Some(_) => "✔ at or below 1",
+    }
+}
+
+/// The readouts block: one fact per line, label then value.
+pub fn readouts(f: &mut Frame, area: Rect, s: &AppState, t: &Theme) {
+    let e = &s.evidence;
+    let inner_w = usize::from(area.width.saturating_sub(2));
+    let label_w = if inner_w >= 44 { 18 } else { 12 };
+
+    let narrow = inner_w < 44;
+    let past = if narrow {
+        "✖ past limit"
+    } else {
+        "✖ past the limit"
+    };
+    let mut rows: Vec<(&str, String, Level)> = Vec::new();
+    rows.push((
+        if narrow {
+            "growth/step"
+        } else {
+            "growth per step"
+        },
+        format!(
+            "ρ {} {}",
+            num(e.growth_per_step, 5),
+            symbol(growth_level(e.growth_per_step))
+        ),
+        growth_level(e.growth_per_step),
+    ));
+    let efold = e
+        .growth_rate_per_s
+        .filter(|r| *r > 0.0)
+        .map(|r| format!(" (e-fold {} s)", num(Some(1.0 / r), 3)))
+        .unwrap_or_default();
+    rows.push((
+        if narrow { "rate" } else { "growth rate" },
+        match e.growth_rate_per_s {
+            None => "—".to_string(),
+            Some(_) => format!(
+                "{} /s{}",
+                num(e.growth_rate_per_s, 3),
+                if narrow { "" } else { &efold }
+            ),
+        },
+        Level::Ok,
+    ));
+    rows.push((
+        if narrow { "mode" } else { "dominant mode" },
+        hz(e.frequency_hz),
+        Level::Ok,
+    ));
+    let onset = match (e.onset_line, e.onset_time) {
+        (Some(l), Some(tm)) => format!("line {} · t {}", count(l), num(Some(tm), 4)),
+        (Some(l), None) => format!("line {}", count(l)),
+        (None, Some(tm)) => format!("t {}", num(Some(tm), 4)),
+        (None, None) => "—".into(),
+    };
+    rows.push(("onset", onset, Level::Ok));
+    let forecast = match e.forecast_steps {
+        None => "—".into(),
+        Some(n) => {
+            let mut v = format!("{} steps", count(n.max(0.0).round() as u64));
+            if let Some(w) = e.forecast_wall_s {
+                v.push_str(&format!(" · {}", duration(Some(w))));
+            }
+            if !narrow && let Some(tm) = e.forecast_time {
+                v.push_str(&format!(" · t {}", num(Some(tm), 4)));
+            }
+            v
+        }
+    };
+    let f_lvl = if e.forecast_steps.is_some() {
+        Level::Critical
+    } else {
+        Level::Ok
+    };
+    rows.push(("overflow in", forecast, f_lvl));
+    let (margin, m_lvl) = match e.stability_margin {
+        None => (
+            if narrow {
+                "— (no scheme)"
+            } else {
+                "— (no scheme declared)"
+            }
+            .to_string(),
+            Level::Ok,
+        ),
+        Some(m) if m < 0.0 => (format!("{} {past}", pct(Some(m))), Level::Critical),
+        Some(m) if m < 0.1 => (format!("{} ▲ close", pct(Some(m))), Level::Warning),
+        Some(m) => (format!("{} ✔", pct(Some(m))), Level::Ok),
+    };
+    rows.push((
+        if narrow { "margin" } else { "stability margin" },
+        margin,
+        m_lvl,
+    ));
+    let lines: Vec<Line> = rows
+        .into_iter()
+        .map(|(label, value, lvl)| {
+            Line::from(vec![
+                Span::styled(format!("{label:<label_w$}"), t.dim()),
+                Span::styled(value, t.level(lvl)),
+            ])
+        })
+        .collect();
+    let block = Block::default()
+        .borders(Borders::ALL)
+        .border_style(t.border())
+        .title(Span::styled(" growth ", t.title()));
+    f.render_widget(Paragraph::new(lines).block(block), area);
+}

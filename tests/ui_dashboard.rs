@@ -1,0 +1,305 @@
+//! Dashboard rendering (ratatui TestBackend + insta snapshots) and key handling
+//! on the state machine, without a terminal.
+#![allow(clippy::unwrap_used)]
+
+mod ui_support;
+
+use ratatui::Terminal;
+use ratatui::backend::TestBackend;
+use ratatui::style::Color;
+
+use rhoscope::app::{AppState, Dialog, Effect, Key, Msg, StopState};
+use ui_support::{Kind, config, state, state_with};
+
+fn draw(s: &AppState, w: u16, h: u16) -> Terminal<TestBackend> {
+    let mut term = Terminal::new(TestBackend::new(w, h)).unwrap();
+    term.draw(|f| rhoscope::ui::render(s, f)).unwrap();
+    term
+}
+
+fn screen(s: &AppState, w: u16, h: u16) -> String {
+    draw(s, w, h).backend().to_string()
+}
+
+#[test]
+fn healthy_80x24() {
+    insta::assert_snapshot!(screen(&state(Kind::Healthy), 80, 24));
+}
+
+#[test]
+fn healthy_200x60() {
+    insta::assert_snapshot!(screen(&state(Kind::Healthy), 200, 60));
+}
+
+#[test]
+fn warning_80x24() {
+    insta::assert_snapshot!(screen(&state(Kind::Warning), 80, 24));
+}
+
+#[test]
+fn warning_200x60() {
+    insta::assert_snapshot!(screen(&state(Kind::Warning), 200, 60));
+}
+
+#[test]
+fn critical_80x24() {
+    insta::assert_snapshot!(screen(&state(Kind::Critical), 80, 24));
+}
+
+#[test]
+fn critical_200x60() {
+    insta::assert_snapshot!(screen(&state(Kind::Critical), 200, 60));
+}
+
+#[test]
+fn stop_dialog_80x24() {
+    let mut s = state(Kind::Critical);
+    s.update(Msg::Key(Key::Char('X')));
+    insta::assert_snapshot!(screen(&s, 80, 24));
+}
+
+#[test]
+fn help_200x60() {
+    let mut s = state(Kind::Healthy);
+    s.update(Msg::Key(Key::Char('?')));
+    insta::assert_snapshot!(screen(&s, 200, 60));
+}
+
+#[test]
+fn tiny_sizes_do_not_panic() {
+    for kind in [Kind::Healthy, Kind::Warning, Kind::Critical] {
+        let mut s = state(kind);
+        for (w, h) in [
+            (0, 0),
+            (1, 1),
+            (10, 5),
+            (23, 7),
+            (24, 8),
+            (40, 12),
+            (69, 20),
+            (70, 15),
+        ] {
+            draw(&s, w, h);
+        }
+        s.update(Msg::Key(Key::Char('?')));
+        draw(&s, 10, 5);
+        s.update(Msg::Key(Key::Esc));
+        s.update(Msg::Key(Key::Char('X')));
+        draw(&s, 10, 5);
+        draw(&s, 30, 9);
+    }
+    let empty = AppState::new(config());
+    for (w, h) in [(0, 0), (1, 1), (10, 5), (80, 24), (200, 60)] {
+        draw(&empty, w, h);
+    }
+}
+
+#[test]
+fn tiny_size_still_says_the_state_in_words() {
+    let s = state(Kind::Critical);
+    let text = screen(&s, 22, 5);
+    assert!(text.contains("CRITICAL"), "{text}");
+}
+
+#[test]
+fn state_is_told_in_words_at_every_size() {
+    for (kind, word) in [
+        (Kind::Healthy, "HEALTHY"),
+        (Kind::Warning, "WARNING"),
+        (Kind::Critical, "CRITICAL"),
+    ] {
+        for (w, h) in [(80, 24), (200, 60)] {
+            let text = screen(&state(kind), w, h);
+            assert!(text.contains(word), "{word} missing at {w}x{h}");
+        }
+    }
+}
+
+#[test]
+fn no_color_draws_without_colours() {
+    let mut cfg = config();
+    cfg.color = false;
+    let s = state_with(Kind::Critical, cfg);
+    let term = draw(&s, 200, 60);
+    let buf = term.backend().buffer();
+    for cell in buf.content() {
+        assert_eq!(cell.fg, Color::Reset, "coloured cell {:?}", cell.symbol());
+        assert_eq!(cell.bg, Color::Reset, "coloured cell {:?}", cell.symbol());
+    }
+    let text = term.backend().to_string();
+    assert!(text.contains("CRITICAL") && text.contains('✖'));
+}
+
+#[test]
+fn quit_keys_quit() {
+    for k in [Key::Char('q'), Key::Interrupt] {
+        let mut s = state(Kind::Healthy);
+        assert_eq!(s.update(Msg::Key(k)), vec![Effect::Quit]);
+        assert!(s.quit);
+    }
+}
+
+#[test]
+fn pause_freezes_the_window_while_rows_still_arrive() {
+    let mut s = state(Kind::Healthy);
+    let before = s.x_window().unwrap();
+    s.update(Msg::Key(Key::Char(' ')));
+    assert!(s.view.paused_at.is_some());
+    let more = ui_support::state(Kind::Healthy);
+    // Feed the rows of another run on top: x goes on, the window must not.
+    let _ = more;
+    let mut b = rhoscope::app::Batch::default();
+    let mut row = [0.0; 8];
+    row[0] = 1.0;
+    b.push_row(9_999, &row);
+    s.update(Msg::Data(Box::new(b)));
+    assert_eq!(s.x_window().unwrap(), before);
+    assert_eq!(s.rows, 2_001);
+    s.update(Msg::Key(Key::Char('p')));
+    assert!(s.x_window().unwrap().1 > before.1);
+}
+
+#[test]
+fn zoom_narrows_and_widens_the_window() {
+    let mut s = state(Kind::Healthy);
+    let (lo0, hi0) = s.x_window().unwrap();
+    s.update(Msg::Key(Key::Char('+')));
+    let (lo1, hi1) = s.x_window().unwrap();
+    // Tolerance: one rounding of the span division.
+    assert!(((hi1 - lo1) - (hi0 - lo0) / 4.0).abs() < 1e-12);
+    assert!((hi1 - hi0).abs() < 1e-12);
+    for _ in 0..20 {
+        s.update(Msg::Key(Key::Char('+')));
+    }
+    assert_eq!(s.view.zoom, rhoscope::app::state::MAX_ZOOM);
+    s.update(Msg::Key(Key::Char('-')));
+    assert_eq!(s.view.zoom, rhoscope::app::state::MAX_ZOOM - 1);
+    s.update(Msg::Key(Key::Char('0')));
+    assert_eq!(s.x_window().unwrap(), (lo0, hi0));
+}
+
+#[test]
+fn tab_cycles_the_probe_signals() {
+    let mut s = state(Kind::Healthy);
+    let first = s.shown_probe();
+    s.update(Msg::Key(Key::Tab));
+    let second = s.shown_probe();
+    assert_ne!(first, second);
+    s.update(Msg::Key(Key::Tab));
+    assert_eq!(s.shown_probe(), first);
+    s.update(Msg::Key(Key::BackTab));
+    assert_eq!(s.shown_probe(), second);
+}
+
+#[test]
+fn acknowledge_clears_the_banner_and_logs_it() {
+    let mut s = state(Kind::Critical);
+    assert!(s.banner.is_some());
+    let n = s.events.len();
+    s.update(Msg::Key(Key::Char('a')));
+    assert!(s.banner.is_none());
+    assert_eq!(s.events.len(), n + 1);
+    assert!(s.events.back().unwrap().text.starts_with("acknowledged"));
+    // The run's state is still told after acknowledging.
+    assert!(screen(&s, 80, 24).contains("CRITICAL"));
+}
+
+#[test]
+fn help_opens_and_any_key_closes_it() {
+    let mut s = state(Kind::Healthy);
+    s.update(Msg::Key(Key::Char('?')));
+    assert_eq!(s.dialog, Some(Dialog::Help));
+    let text = screen(&s, 200, 60);
+    for (k, _) in rhoscope::app::update::KEYS {
+        assert!(text.contains(k), "help does not list {k}");
+    }
+    assert!(s.update(Msg::Key(Key::Char('z'))).is_empty());
+    assert_eq!(s.dialog, None);
+}
+
+#[test]
+fn stop_needs_an_explicit_yes() {
+    for k in [
+        Key::Char('n'),
+        Key::Char('N'),
+        Key::Enter,
+        Key::Esc,
+        Key::Char('q'),
+    ] {
+        let mut s = state(Kind::Critical);
+        s.update(Msg::Key(Key::Char('X')));
+        assert_eq!(s.dialog, Some(Dialog::ConfirmStop));
+        let fx = s.update(Msg::Key(k));
+        assert!(fx.is_empty(), "{k:?} must not stop the run");
+        assert_eq!(s.stop, StopState::Idle);
+        assert!(!s.quit);
+    }
+}
+
+#[test]
+fn stop_dialog_names_the_actions_and_the_cautions() {
+    let mut s = state(Kind::Critical);
+    s.update(Msg::Key(Key::Char('X')));
+    let text = screen(&s, 200, 60);
+    for a in &s.config.actions {
+        assert!(text.contains(a.as_str()), "action not named: {a}");
+    }
+    assert!(text.contains("An alarm is advice"));
+    assert!(text.contains("last checkpoint"));
+    assert!(text.contains("licensed"));
+}
+
+#[test]
+fn stop_fires_once() {
+    let mut s = state(Kind::Critical);
+    s.update(Msg::Key(Key::Char('X')));
+    let fx = s.update(Msg::Key(Key::Char('y')));
+    assert!(matches!(fx.as_slice(), [Effect::Stop { .. }]));
+    assert!(matches!(s.stop, StopState::Requested { .. }));
+    s.update(Msg::Key(Key::Char('X')));
+    assert!(s.update(Msg::Key(Key::Char('y'))).is_empty());
+    s.update(Msg::StopReport {
+        ok: true,
+        report: vec!["stop file created".into()],
+    });
+    s.update(Msg::Key(Key::Char('X')));
+    assert!(s.update(Msg::Key(Key::Char('y'))).is_empty());
+}
+
+#[test]
+fn nothing_armed_means_nothing_fired() {
+    let mut cfg = config();
+    cfg.actions.clear();
+    let mut s = state_with(Kind::Critical, cfg);
+    s.update(Msg::Key(Key::Char('X')));
+    assert!(s.update(Msg::Key(Key::Char('y'))).is_empty());
+    assert_eq!(s.stop, StopState::Idle);
+}
+
+#[test]
+fn armed_on_critical_fires_by_itself_once() {
+    let mut cfg = config();
+    cfg.stop_on_critical = true;
+    let s = state_with(Kind::Critical, cfg.clone());
+    assert!(matches!(s.stop, StopState::Requested { .. }));
+    // Warnings alone do not stop.
+    let w = state_with(Kind::Warning, cfg);
+    assert_eq!(w.stop, StopState::Idle);
+}
+
+#[test]
+fn a_signal_ends_the_loop() {
+    let mut s = state(Kind::Healthy);
+    assert_eq!(s.update(Msg::Signal("SIGHUP")), vec![Effect::Quit]);
+    assert!(s.quit);
+}
+
+#[test]
+fn unknown_keys_do_not_mark_the_screen_dirty() {
+    let mut s = state(Kind::Healthy);
+    s.dirty = false;
+    s.update(Msg::Key(Key::Other));
+    assert!(!s.dirty);
+    s.update(Msg::Resize);
+    assert!(s.dirty);
+}
