@@ -8,6 +8,7 @@ use ratatui::Terminal;
 use ratatui::backend::TestBackend;
 use ratatui::style::Color;
 
+use rhoscope::alarm::Level;
 use rhoscope::app::{AppState, Dialog, Effect, Key, Msg, StopState};
 use ui_support::{Kind, config, state, state_with};
 
@@ -254,7 +255,7 @@ fn stop_fires_once() {
     let mut s = state(Kind::Critical);
     s.update(Msg::Key(Key::Char('X')));
     let fx = s.update(Msg::Key(Key::Char('y')));
-    assert!(matches!(fx.as_slice(), [Effect::Stop { .. }]));
+    assert!(matches!(fx.as_slice(), [Effect::Stop(a)] if a.level == Level::Critical));
     assert!(matches!(s.stop, StopState::Requested { .. }));
     s.update(Msg::Key(Key::Char('X')));
     assert!(s.update(Msg::Key(Key::Char('y'))).is_empty());
@@ -277,14 +278,43 @@ fn nothing_armed_means_nothing_fired() {
 }
 
 #[test]
-fn armed_on_critical_fires_by_itself_once() {
+fn armed_for_alarms_hands_each_alarm_to_the_actions() {
     let mut cfg = config();
-    cfg.stop_on_critical = true;
-    let s = state_with(Kind::Critical, cfg.clone());
-    assert!(matches!(s.stop, StopState::Requested { .. }));
-    // Warnings alone do not stop.
-    let w = state_with(Kind::Warning, cfg);
-    assert_eq!(w.stop, StopState::Idle);
+    cfg.auto_stop = true;
+    let mut s = AppState::new(cfg);
+    let fx = s.update(Msg::Data(Box::new(ui_support::alarm_batch(
+        Level::Critical,
+    ))));
+    assert!(matches!(fx.as_slice(), [Effect::Alarm(a)] if a.level == Level::Critical));
+    // Not armed for alarms: the same alarm only shows.
+    let mut s = AppState::new(config());
+    assert!(
+        s.update(Msg::Data(Box::new(ui_support::alarm_batch(
+            Level::Critical
+        ))))
+        .is_empty()
+    );
+    assert_eq!(s.level, Level::Critical);
+}
+
+#[test]
+fn reports_of_an_escalation_accumulate() {
+    let mut s = state(Kind::Critical);
+    s.update(Msg::StopReport {
+        ok: true,
+        report: vec!["created STOP".into()],
+    });
+    s.update(Msg::StopReport {
+        ok: false,
+        report: vec!["signal refused".into()],
+    });
+    match &s.stop {
+        StopState::Done { ok, report } => {
+            assert!(!ok);
+            assert_eq!(report.len(), 2);
+        }
+        other => panic!("{other:?}"),
+    }
 }
 
 #[test]

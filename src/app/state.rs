@@ -30,8 +30,9 @@ pub struct Config {
     /// What the stop key and a critical alarm do, one line per action, in order.
     /// Empty: no action armed.
     pub actions: Vec<String>,
-    /// Take the armed actions by themselves on a critical alarm (as `guard` does).
-    pub stop_on_critical: bool,
+    /// Hand every alarm to the armed actions, which fire by themselves on a
+    /// critical one (as `guard` does); otherwise they fire only by hand.
+    pub auto_stop: bool,
     /// Rows kept at full resolution.
     pub retention_rows: usize,
 }

@@ -3,7 +3,8 @@
 //! [`AppState::update`] applies them and returns the [`Effect`]s the event loop
 //! must carry out (quit, take the stop actions). No terminal, no clock, no files.
 
-use crate::alarm::Level;
+use crate::alarm::{Alarm, Level};
+use crate::detect::Evidence;
 use crate::parse::roles::Role;
 use crate::parse::{SegmentReason, SkipReason};
 
@@ -50,11 +51,16 @@ pub enum Msg {
 #[derive(Debug, Clone, PartialEq)]
 pub enum Effect {
     Quit,
-    /// Take the armed stop actions once, for this reason.
-    Stop {
-        reason: String,
-    },
+    /// The user confirmed the stop: hand this (critical) alarm to the armed
+    /// actions, which fire at most once.
+    Stop(Alarm),
+    /// An alarm was raised while actions are armed: hand it to them; they
+    /// decide whether it triggers (critical, or warning when so configured).
+    Alarm(Alarm),
 }
+
+/// Detector name of the alarm that stands for a stop confirmed by hand.
+pub const BY_HAND: &str = "dashboard";
 
 /// Every key of the dashboard and what it does, for the help overlay and the
 /// footer. Keep in step with [`AppState::update`].
@@ -110,7 +116,20 @@ impl AppState {
                         text: line.clone(),
                     });
                 }
-                self.stop = StopState::Done { ok, report };
+                // Reports of an escalation accumulate: later steps come after a grace period.
+                self.stop = match std::mem::replace(&mut self.stop, StopState::Idle) {
+                    StopState::Done {
+                        ok: was_ok,
+                        report: mut all,
+                    } => {
+                        all.extend(report);
+                        StopState::Done {
+                            ok: was_ok && ok,
+                            report: all,
+                        }
+                    }
+                    _ => StopState::Done { ok, report },
+                };
                 self.dirty = true;
             }
             Msg::Signal(name) => {
@@ -133,7 +152,7 @@ impl AppState {
             Some(Dialog::ConfirmStop) => {
                 self.dialog = None;
                 if matches!(k, Key::Char('y') | Key::Char('Y')) {
-                    self.request_stop("stopped by hand from the dashboard", fx);
+                    self.request_stop(fx);
                 } else {
                     self.push_event(Event {
                         level: Level::Ok,
@@ -194,41 +213,39 @@ impl AppState {
         }
     }
 
-    /// Fire the stop actions once; later requests only leave a note.
-    fn request_stop(&mut self, reason: &str, fx: &mut Vec<Effect>) {
+    /// Hand a by-hand stop to the armed actions once; later requests only
+    /// leave a note.
+    fn request_stop(&mut self, fx: &mut Vec<Effect>) {
+        let note = |text: &str| Event {
+            level: Level::Warning,
+            source: "stop".into(),
+            line: None,
+            time: None,
+            text: text.into(),
+        };
         if self.config.actions.is_empty() {
-            self.push_event(Event {
-                level: Level::Warning,
-                source: "stop".into(),
-                line: None,
-                time: None,
-                text: "no stop action is armed; nothing was done".into(),
-            });
+            self.push_event(note("no stop action is armed; nothing was done"));
             return;
         }
         if self.stop != StopState::Idle {
-            self.push_event(Event {
-                level: Level::Ok,
-                source: "stop".into(),
-                line: None,
-                time: None,
-                text: "the stop actions were already taken once; not repeated".into(),
-            });
+            self.push_event(note(
+                "the stop actions were already taken once; not repeated",
+            ));
             return;
         }
+        let reason = "stop confirmed by hand from the dashboard".to_string();
         self.stop = StopState::Requested {
-            reason: reason.to_string(),
+            reason: reason.clone(),
         };
-        self.push_event(Event {
-            level: Level::Warning,
-            source: "stop".into(),
-            line: Some(self.last_line).filter(|l| *l > 0),
+        self.push_event(note(&format!("taking the stop actions: {reason}")));
+        fx.push(Effect::Stop(Alarm {
+            level: Level::Critical,
+            detector: BY_HAND,
+            line: self.last_line,
             time: self.time_now(),
-            text: format!("taking the stop actions: {reason}"),
-        });
-        fx.push(Effect::Stop {
-            reason: reason.to_string(),
-        });
+            message: reason,
+            evidence: Evidence::default(),
+        }));
     }
 
     fn ingest(&mut self, b: &Batch, fx: &mut Vec<Effect>) {
@@ -301,9 +318,11 @@ impl AppState {
                     {
                         self.banner = Some(ev);
                     }
-                    if a.level == Level::Critical && self.config.stop_on_critical {
-                        let reason = format!("critical alarm at line {}: {}", a.line, a.message);
-                        self.request_stop(&reason, fx);
+                    if self.config.auto_stop
+                        && !self.config.actions.is_empty()
+                        && a.level > Level::Ok
+                    {
+                        fx.push(Effect::Alarm(a.clone()));
                     }
                 }
             }

@@ -51,8 +51,8 @@ pub fn render(f: &mut Frame, area: Rect, s: &AppState, t: &Theme) {
             format!(
                 "stop: armed ({}{})",
                 s.config.actions.len(),
-                if s.config.stop_on_critical {
-                    ", on critical"
+                if s.config.auto_stop {
+                    ", on alarm"
                 } else {
                     ", by key"
                 }

@@ -38,7 +38,7 @@ pub fn config() -> Config {
             "wait 60 s for the solver to exit".into(),
             "then send SIGTERM to process 4242 (checked to be the solver)".into(),
         ],
-        stop_on_critical: false,
+        auto_stop: false,
         retention_rows: 0,
     }
 }
@@ -80,7 +80,7 @@ fn row(i: u32, grow: bool) -> [f64; 8] {
     let w = 2.0 * std::f64::consts::PI * 200.0;
     let (c, s) = ((w * t).cos(), (w * t).sin());
     let mode = if grow && i > 1_200 {
-        1e-3 * 1.01f64.powi((i - 1_200) as i32) * if i % 2 == 0 { 1.0 } else { -1.0 }
+        1e-3 * 1.01f64.powi((i - 1_200) as i32) * if i.is_multiple_of(2) { 1.0 } else { -1.0 }
     } else {
         0.0
     };
@@ -144,6 +144,14 @@ fn alarm(level: Level, detector: &'static str, line: u64, message: &str) -> Item
         message: message.into(),
         evidence: Evidence::default(),
     })
+}
+
+/// A batch holding one alarm of `level` and nothing else.
+pub fn alarm_batch(level: Level) -> Batch {
+    let mut b = Batch::default();
+    b.items
+        .push(alarm(level, "growth", 10, "growth per step 1.2 above 1"));
+    b
 }
 
 /// The state after the whole invented run was read in batches.
