@@ -4,3 +4,5 @@
 mod limits_cli;
 mod parse_formats;
 mod scan_cli;
+mod ui_dashboard;
+mod ui_support;

@@ -1,8 +1,5 @@
 //! Dashboard rendering (ratatui TestBackend + insta snapshots) and key handling
 //! on the state machine, without a terminal.
-#![allow(clippy::unwrap_used)]
-
-mod ui_support;
 
 use ratatui::Terminal;
 use ratatui::backend::TestBackend;
@@ -10,7 +7,7 @@ use ratatui::style::Color;
 
 use rhoscope::alarm::Level;
 use rhoscope::app::{AppState, Dialog, Effect, Key, Msg, StopState};
-use ui_support::{Kind, config, state, state_with};
+use crate::ui_support::{self, Kind, config, state, state_with};
 
 fn draw(s: &AppState, w: u16, h: u16) -> Terminal<TestBackend> {
     let mut term = Terminal::new(TestBackend::new(w, h)).unwrap();

@@ -61,3 +61,27 @@ impl Batch {
         self.items.is_empty() && self.status.is_none()
     }
 }
+impl crate::pipeline::PipelineSink for Batch {
+    fn alarm(&mut self, alarm: &Alarm) {
+        self.items.push(Item::Alarm(alarm.clone()));
+    }
+    fn schema(&mut self, line: u64, schema: &Schema, roles: &RoleMap) {
+        self.items.push(Item::Schema {
+            line,
+            schema: schema.clone(),
+            roles: roles.clone(),
+        });
+    }
+    fn row(&mut self, line: u64, values: &[f64]) {
+        self.push_row(line, values);
+    }
+    fn segment(&mut self, line: u64, reason: SegmentReason) {
+        self.items.push(Item::Segment { line, reason });
+    }
+    fn skipped(&mut self, line: u64, reason: &SkipReason) {
+        self.items.push(Item::Skipped {
+            line,
+            reason: reason.clone(),
+        });
+    }
+}

@@ -244,6 +244,9 @@ mod tests {
         let mut rec = Recorder(vec![]);
         run(&mut term, &mut s, &rx, &mut rec, Pacing::default()).unwrap();
         assert_eq!(rec.0.len(), 1);
-        assert!(matches!(s.stop, crate::app::StopState::Done { ok: true, .. }));
+        assert!(matches!(
+            s.stop,
+            crate::app::StopState::Done { ok: true, .. }
+        ));
     }
 }

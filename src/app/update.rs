@@ -5,8 +5,8 @@
 
 use crate::alarm::{Alarm, Level};
 use crate::detect::Evidence;
+use crate::parse::SegmentReason;
 use crate::parse::roles::Role;
-use crate::parse::{SegmentReason, SkipReason};
 
 use super::batch::{Batch, Item};
 use super::state::{AppState, Dialog, Event, MAX_ZOOM, StopState};
@@ -292,14 +292,19 @@ impl AppState {
                     });
                 }
                 Item::Skipped { line, reason } => {
-                    self.skipped += 1;
+                    let word = if reason.is_note() {
+                        "note"
+                    } else {
+                        self.skipped += 1;
+                        "line skipped"
+                    };
                     if self.skipped <= SKIP_EVENTS {
                         self.push_event(Event {
                             level: Level::Ok,
                             source: "file".into(),
                             line: Some(*line),
                             time: None,
-                            text: format!("line skipped: {}", skip_words(reason)),
+                            text: format!("{word}: {reason}"),
                         });
                     }
                 }
@@ -371,17 +376,5 @@ fn segment_words(r: SegmentReason) -> &'static str {
         SegmentReason::NewHeader => "a header line after data (restart)",
         SegmentReason::TimeBackwards => "time went backwards (restart)",
         SegmentReason::Truncated => "the file was truncated or replaced",
-    }
-}
-
-fn skip_words(r: &SkipReason) -> String {
-    match r {
-        SkipReason::FieldCount { expected, found } => {
-            format!("{found} fields where the header has {expected}")
-        }
-        SkipReason::TooLong { bytes } => format!("line of {bytes} bytes is too long"),
-        SkipReason::NotANumber { field } => format!("field {} is not a number", field + 1),
-        SkipReason::NonUtf8Header => "header is not UTF-8".into(),
-        SkipReason::Other(s) => s.clone(),
     }
 }

@@ -1,7 +1,6 @@
 //! Hand-made dashboard states for the UI tests: an invented run (a plate on
 //! springs, 8 columns) fed through `AppState::update` in batches, healthy, in
 //! warning, or going unstable, with detector estimates set by hand.
-#![allow(dead_code)]
 
 use std::time::Duration;
 
