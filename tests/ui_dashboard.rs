@@ -5,9 +5,9 @@ use ratatui::Terminal;
 use ratatui::backend::TestBackend;
 use ratatui::style::Color;
 
+use crate::ui_support::{self, Kind, config, state, state_with};
 use rhoscope::alarm::Level;
 use rhoscope::app::{AppState, Dialog, Effect, Key, Msg, StopState};
-use crate::ui_support::{self, Kind, config, state, state_with};
 
 fn draw(s: &AppState, w: u16, h: u16) -> Terminal<TestBackend> {
     let mut term = Terminal::new(TestBackend::new(w, h)).unwrap();
