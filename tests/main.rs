@@ -1,6 +1,7 @@
 //! The integration-test crate: one binary, one module per area.
 #![allow(clippy::unwrap_used)]
 
+mod detect_checks;
 mod limits_cli;
 mod parse_formats;
 mod scan_cli;

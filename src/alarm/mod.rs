@@ -40,6 +40,10 @@ impl AlarmSink for Vec<Alarm> {
 
 /// Turns a stream of findings into alarms: a detector's alarm is raised when its
 /// level rises, and not again until it has cleared (a finding at `Ok`) or risen.
+/// Persistence (how long a condition must hold) and hysteresis (how far it must
+/// fall back before it clears) are decided by each detector, which knows its
+/// own signal; the book only guarantees one alarm per raise. A drop from
+/// critical to warning raises nothing; the condition stays at the lower level.
 #[derive(Debug, Default)]
 pub struct AlarmBook {
     active: Vec<(&'static str, Level)>,
@@ -68,8 +72,55 @@ impl AlarmBook {
         }
     }
 
+    /// Highest active level over all detectors.
+    pub fn level(&self) -> Level {
+        self.active
+            .iter()
+            .map(|(_, l)| *l)
+            .max()
+            .unwrap_or(Level::Ok)
+    }
+
     /// Forget all active conditions (a new segment).
     pub fn reset(&mut self) {
         self.active.clear();
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn finding(detector: &'static str, level: Level, line: u64) -> Finding {
+        Finding {
+            detector,
+            level,
+            line,
+            time: None,
+            message: String::new(),
+            evidence: Evidence::default(),
+        }
+    }
+
+    #[test]
+    fn one_alarm_per_raise() {
+        let mut book = AlarmBook::default();
+        let lines: Vec<u64> = [
+            finding("energy", Level::Warning, 10),
+            finding("energy", Level::Warning, 11),
+            finding("growth", Level::Critical, 12),
+            finding("energy", Level::Critical, 13),
+            finding("energy", Level::Warning, 14),
+            finding("energy", Level::Ok, 15),
+            finding("energy", Level::Warning, 16),
+        ]
+        .iter()
+        .filter_map(|f| book.take(f))
+        .map(|a| a.line)
+        .collect();
+        assert_eq!(lines, vec![10, 12, 13, 16]);
+        assert_eq!(book.level(), Level::Critical);
+        book.reset();
+        assert_eq!(book.level(), Level::Ok);
     }
 }

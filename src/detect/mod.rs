@@ -4,7 +4,14 @@
 //! detector for the segment being read and keeps a [`Status`] of the latest
 //! estimates for the dashboard.
 
+pub mod balance;
+pub mod clock;
+pub mod energy;
+pub mod forecast;
+pub mod growth;
+pub mod modes;
 pub mod nonfinite;
+pub mod step;
 
 use crate::alarm::Level;
 use crate::parse::Schema;
@@ -19,6 +26,13 @@ pub struct Sample<'a> {
     pub values: &'a [f64],
     /// Wall-clock arrival instant in seconds on a monotonic clock, when following live.
     pub arrival_s: Option<f64>,
+}
+
+/// The finite value of column `col` of a row, if there is one.
+pub fn finite_at(values: &[f64], col: Option<usize>) -> Option<f64> {
+    col.and_then(|i| values.get(i))
+        .copied()
+        .filter(|v| v.is_finite())
 }
 
 /// Quantitative evidence attached to a finding; every field optional.
@@ -110,9 +124,12 @@ pub struct Engine {
 impl Engine {
     /// Detectors for a segment with this schema and these roles.
     pub fn new(schema: &Schema, roles: &RoleMap, settings: &DetectSettings) -> Self {
-        let _ = settings;
-        let detectors: Vec<Box<dyn Detector + Send>> =
-            vec![Box::new(nonfinite::NonFinite::new(schema, roles))];
+        let detectors: Vec<Box<dyn Detector + Send>> = vec![
+            Box::new(nonfinite::NonFinite::new(schema, roles)),
+            Box::new(growth::Growth::new(roles, settings)),
+            Box::new(energy::Energy::new(roles, settings)),
+            Box::new(step::StepSize::new(roles)),
+        ];
         Self {
             detectors,
             status: Status::default(),
@@ -135,4 +152,40 @@ impl Engine {
         self.status = s;
         &self.status
     }
+}
+
+/// Run rows held in memory through a fresh [`Engine`] and an
+/// [`AlarmBook`](crate::alarm::AlarmBook): the alarms raised and the final
+/// status. For checks and benchmarks of the detectors alone; files go
+/// through the pipeline.
+pub fn replay<'a, I>(
+    schema: &Schema,
+    roles: &RoleMap,
+    settings: &DetectSettings,
+    rows: I,
+) -> (Vec<crate::alarm::Alarm>, Status)
+where
+    I: IntoIterator<Item = (u64, &'a [f64])>,
+{
+    let mut engine = Engine::new(schema, roles, settings);
+    let mut book = crate::alarm::AlarmBook::default();
+    let mut findings = Vec::new();
+    let mut alarms = Vec::new();
+    for (line, values) in rows {
+        engine.feed(
+            &Sample {
+                line,
+                values,
+                arrival_s: None,
+            },
+            &mut findings,
+        );
+        for f in findings.drain(..) {
+            if let Some(a) = book.take(&f) {
+                alarms.push(a);
+            }
+        }
+    }
+    let status = engine.status().clone();
+    (alarms, status)
 }

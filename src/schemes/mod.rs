@@ -14,6 +14,7 @@
 
 pub mod amplification;
 pub mod courant;
+pub mod fit;
 pub mod limit;
 pub mod spectrum;
 

@@ -1,0 +1,221 @@
+//! One fit of the growth detector: columns of a window of recent outputs are
+//! centred and scaled (so one huge probe does not hide another), mixed into a
+//! few channels by fixed weights (a linear combination of a linear system's
+//! outputs keeps its eigenvalues), delay-embedded, and fitted by DMD. Each
+//! growing eigenvalue is then checked against its own amplitude history:
+//! it must rise clearly above the fit's noise and by a real factor within the
+//! window, or it is discarded as a fitting artefact.
+
+use nalgebra::{Complex, DMatrix};
+
+use crate::schemes::fit;
+
+/// Target dimension of the delay-embedded snapshot (channels × delays).
+pub const EMBED_DIM: usize = 12;
+/// At most this many channels; more columns are mixed down.
+pub const MAX_CHANNELS: usize = 3;
+/// A growing mode must grow at least this much over the window.
+pub const MIN_WINDOW_GROWTH: f64 = 4.0;
+/// Its latest amplitude must stand this far above its one-step misfit.
+pub const MIN_SNR: f64 = 20.0;
+
+/// Fixed channel weight for column `j` in channel `c`: a ±1 pattern with
+/// irregular signs, so that no mode can cancel in every channel.
+fn weight(c: usize, j: usize) -> f64 {
+    let h = (j as u64 + 1)
+        .wrapping_mul(0x9E37_79B9_7F4A_7C15)
+        .wrapping_add((c as u64 + 1).wrapping_mul(0xBF58_476D_1CE4_E5B9));
+    let h = (h ^ (h >> 31)).wrapping_mul(0x94D0_49BB_1331_11EB);
+    if (h >> 40) & 1 == 1 { 1.0 } else { -1.0 }
+}
+
+/// The linear channel map fixed by a fit: y_c = Σ_j w_cj (x_j − mean_j)/scale_j.
+#[derive(Debug, Clone)]
+pub struct ChannelMap {
+    /// (column index within the window, mean, 1/scale) of active columns.
+    pub cols: Vec<(usize, f64, f64)>,
+    /// Number of channels.
+    pub q: usize,
+    /// Delays.
+    pub d: usize,
+}
+
+impl ChannelMap {
+    /// Channel values of one row (`row` holds all window columns).
+    pub fn channels(&self, row: &[f64], out: &mut [f64]) {
+        out.iter_mut().for_each(|v| *v = 0.0);
+        let direct = self.cols.len() <= MAX_CHANNELS;
+        for (k, &(j, mean, inv)) in self.cols.iter().enumerate() {
+            let z = (row[j] - mean) * inv;
+            if direct {
+                out[k] = z;
+            } else {
+                for (c, o) in out.iter_mut().enumerate().take(self.q) {
+                    *o += weight(c, j) * z;
+                }
+            }
+        }
+    }
+}
+
+/// A growing mode that passed its checks.
+#[derive(Debug, Clone, Copy)]
+pub struct GrowingMode {
+    /// Eigenvalue per output interval.
+    pub mu: Complex<f64>,
+    /// Latest amplitude over its one-step misfit.
+    pub snr: f64,
+    /// Share of the latest snapshot carried by the mode (0..1, roughly).
+    pub share: f64,
+}
+
+/// Result of one fit.
+#[derive(Debug, Clone)]
+pub struct Analysis {
+    pub map: ChannelMap,
+    /// Rows q × (q·d): predicts the newest channel values from the previous snapshot.
+    pub predictor: DMatrix<f64>,
+    /// RMS one-step misfit of the channels in the window.
+    pub misfit_rms: f64,
+    /// RMS of the channels in the window.
+    pub signal_rms: f64,
+    /// Largest eigenvalue modulus of the fit (any mode, checked or not).
+    pub spectral_radius: f64,
+    /// The strongest growing mode that passed its checks.
+    pub growing: Option<GrowingMode>,
+    pub rank: usize,
+}
+
+/// Fit a window: `rows` is row-major, `n` rows of `m` values, oldest first.
+pub fn analyse(rows: &[f64], n: usize, m: usize) -> Option<Analysis> {
+    if n < 2 * EMBED_DIM || m == 0 || rows.len() < n * m {
+        return None;
+    }
+    let mut cols = Vec::new();
+    for j in 0..m {
+        let col = (0..n).map(|i| rows[i * m + j]);
+        let mean = col.clone().sum::<f64>() / n as f64;
+        let var = col.map(|v| (v - mean) * (v - mean)).sum::<f64>() / n as f64;
+        let sd = var.sqrt();
+        // Constant (or rounding-only) columns carry no dynamics.
+        if sd.is_finite() && sd > 0.0 && sd > 1e-13 * mean.abs() {
+            cols.push((j, mean, 1.0 / sd));
+        }
+    }
+    if cols.is_empty() {
+        return None;
+    }
+    let q = cols.len().min(MAX_CHANNELS);
+    let d = EMBED_DIM.div_ceil(q).max(2);
+    let map = ChannelMap { cols, q, d };
+    let mut y = vec![0.0; n * q];
+    for i in 0..n {
+        map.channels(&rows[i * m..(i + 1) * m], &mut y[i * q..(i + 1) * q]);
+    }
+    let dim = q * d;
+    let snaps = n - d + 1;
+    // Snapshot t holds [y_t; y_{t−1}; …; y_{t−d+1}].
+    let h = DMatrix::from_fn(dim, snaps, |r, s| {
+        let (lag, c) = (r / q, r % q);
+        y[(s + d - 1 - lag) * q + c]
+    });
+    let f = fit::dmd(&h)?;
+    let u_top = f.basis.rows(0, q);
+    let predictor = u_top * &f.reduced * f.basis.transpose();
+    let signal_rms = (y.iter().map(|v| v * v).sum::<f64>() / y.len() as f64).sqrt();
+    let mut misfit = 0.0;
+    for s in 0..snaps - 1 {
+        let p = &predictor * h.column(s);
+        for c in 0..q {
+            let e = h[(c, s + 1)] - p[c];
+            misfit += e * e;
+        }
+    }
+    let misfit_rms = (misfit / ((snaps - 1) * q) as f64).sqrt();
+    let spectral_radius = f.eigenvalues.iter().map(|e| e.norm()).fold(0.0, f64::max);
+    let growing = strongest_growing(&f, &h);
+    Some(Analysis {
+        map,
+        predictor,
+        misfit_rms,
+        signal_rms,
+        spectral_radius,
+        growing,
+        rank: f.rank,
+    })
+}
+
+/// Check the growing eigenvalues, strongest first; return the first that passes.
+fn strongest_growing(f: &fit::DmdFit, h: &DMatrix<f64>) -> Option<GrowingMode> {
+    let snaps = h.ncols();
+    let min_ln = MIN_WINDOW_GROWTH.ln() / (snaps - 1) as f64;
+    let mut cands: Vec<Complex<f64>> = f
+        .eigenvalues
+        .iter()
+        .copied()
+        .filter(|e| e.im >= 0.0 && e.norm().ln() > min_ln)
+        .collect();
+    cands.sort_by(|a, b| b.norm().total_cmp(&a.norm()));
+    let last = h.column(snaps - 1).norm();
+    for mu in cands.into_iter().take(3) {
+        let Some((a, psi)) = fit::mode_amplitudes(f, mu, h) else {
+            continue;
+        };
+        let n = a.len();
+        let misfit = ((1..n)
+            .map(|i| (a[i] - mu * a[i - 1]).norm_sqr())
+            .sum::<f64>()
+            / (n - 1) as f64)
+            .sqrt();
+        let end = a[n - 1].norm();
+        let snr = if misfit > 0.0 {
+            end / misfit
+        } else {
+            f64::INFINITY
+        };
+        if snr.is_nan() || snr < MIN_SNR {
+            continue;
+        }
+        // The amplitude itself must have grown, by the factor the eigenvalue claims
+        // (at least half of it in log terms), over the part above the misfit.
+        let start = a
+            .iter()
+            .position(|v| v.norm() > 3.0 * misfit)
+            .unwrap_or(n - 1);
+        let seen = n - 1 - start;
+        if seen < 4 {
+            continue;
+        }
+        let grew = (end / a[start].norm()).ln();
+        if grew < 0.5 * mu.norm().ln() * seen as f64 || grew < MIN_WINDOW_GROWTH.ln() * 0.5 {
+            continue;
+        }
+        let share = mode_share(f, mu, &psi, a[n - 1], last);
+        return Some(GrowingMode { mu, snr, share });
+    }
+    None
+}
+
+/// |a·φ| / ‖h_last‖: the mode's part of the latest snapshot, with φ = U w the
+/// right eigenvector scaled so that ψᵀw = 1 (biorthogonal expansion).
+fn mode_share(
+    f: &fit::DmdFit,
+    mu: Complex<f64>,
+    psi: &[Complex<f64>],
+    a_last: Complex<f64>,
+    last_norm: f64,
+) -> f64 {
+    let Some(w) = fit::eigenvector(&f.reduced, mu) else {
+        return 0.0;
+    };
+    let dot = psi
+        .iter()
+        .zip(&w)
+        .fold(Complex::new(0.0, 0.0), |acc, (p, v)| acc + p * v);
+    // ‖U w‖ = ‖w‖ = 1 (U has orthonormal columns, w unit length).
+    if last_norm > 0.0 && dot.norm() > 0.0 {
+        (a_last.norm() / dot.norm() / last_norm).min(1.0)
+    } else {
+        0.0
+    }
+}
