@@ -17,6 +17,7 @@ pub mod history;
 pub mod parse;
 pub mod pipeline;
 pub mod report;
+pub mod report_plot;
 pub mod schemes;
 pub mod settings;
 pub mod source;

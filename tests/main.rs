@@ -4,6 +4,7 @@
 mod detect_checks;
 mod limits_cli;
 mod parse_formats;
+mod report_plot;
 mod scan_cli;
 mod ui_dashboard;
 mod ui_support;

@@ -2,8 +2,6 @@
 //! [`crate::schemes`] for the stability limit and the spectral radius, and
 //! prints text, a terminal chart, or one JSON object.
 
-use std::io::Write;
-
 use anyhow::{Context, bail};
 use serde::Serialize;
 
@@ -78,15 +76,8 @@ pub fn run(args: LimitsArgs) -> anyhow::Result<i32> {
         };
         format!("{}\n{body}", render_text(&out, element.as_ref()))
     };
-    let mut stdout = std::io::stdout().lock();
-    match stdout
-        .write_all(text.as_bytes())
-        .and_then(|()| stdout.flush())
-    {
-        // A closed pipe (`| head`) is not an error of ours.
-        Err(e) if e.kind() != std::io::ErrorKind::BrokenPipe => Err(e.into()),
-        _ => Ok(0),
-    }
+    super::scan::write_stdout(text.as_bytes())?;
+    Ok(0)
 }
 
 fn positive(flag: &str, v: Option<f64>) -> anyhow::Result<Option<f64>> {

@@ -5,6 +5,7 @@ pub mod demo;
 pub mod guard;
 pub mod limits;
 pub mod scan;
+pub mod scan_plot;
 pub mod watch;
 
 use clap::Parser;

@@ -9,6 +9,7 @@ use anyhow::{Context, bail};
 use crate::cli::scan::ScanArgs;
 use crate::pipeline::{Pipeline, PipelineSink};
 use crate::report::{ReportBuilder, ScanReport};
+use crate::report_plot::{PlotCollector, Tee};
 use crate::settings::Settings;
 
 /// Files at least this large get a progress bar (when stderr is a terminal).
@@ -23,7 +24,15 @@ pub fn run(args: ScanArgs) -> anyhow::Result<i32> {
     for note in &settings.notes {
         eprintln!("rhoscope: {note}");
     }
-    let report = scan_path(&args.file, &settings, std::io::stderr().is_terminal())?;
+    let plot = match &args.plot {
+        Some(p) => Some(super::scan_plot::target(p)?),
+        None => None,
+    };
+    let progress = std::io::stderr().is_terminal();
+    let report = match plot {
+        None => scan_path(&args.file, &settings, progress)?,
+        Some(target) => super::scan_plot::scan_and_draw(&args.file, &settings, progress, target)?,
+    };
     let mut text = if args.json {
         serde_json::to_vec(&report).context("cannot write the report")?
     } else {
@@ -65,11 +74,24 @@ pub fn open_history(path: &Path) -> anyhow::Result<(std::fs::File, u64)> {
 
 /// Feed the whole file at `path` through `pipeline` into `sink`, streaming in
 /// chunks; returns the bytes read.
-pub fn feed_file(
+pub fn feed_file<S: PipelineSink>(
     path: &Path,
     pipeline: &mut Pipeline,
-    sink: &mut dyn PipelineSink,
+    sink: &mut S,
     progress: bool,
+) -> anyhow::Result<u64> {
+    feed_file_sampled(path, pipeline, sink, progress, CHUNK_BYTES, |_, _| {})
+}
+
+/// [`feed_file`], calling `after` with the pipeline and the sink after every
+/// `slice_bytes` bytes fed (to sample the detectors' status along the way).
+pub fn feed_file_sampled<S: PipelineSink>(
+    path: &Path,
+    pipeline: &mut Pipeline,
+    sink: &mut S,
+    progress: bool,
+    slice_bytes: usize,
+    mut after: impl FnMut(&mut Pipeline, &mut S),
 ) -> anyhow::Result<u64> {
     let (mut file, size) = open_history(path)?;
     let bar = (progress && size >= PROGRESS_MIN_BYTES).then(|| {
@@ -96,12 +118,16 @@ pub fn feed_file(
             }
         };
         total += n as u64;
-        pipeline.feed(&buf[..n], None, sink);
+        for slice in buf[..n].chunks(slice_bytes.max(1)) {
+            pipeline.feed(slice, None, sink);
+            after(pipeline, sink);
+        }
         if let Some(b) = &bar {
             b.set_position(total);
         }
     }
     pipeline.finish(sink);
+    after(pipeline, sink);
     if let Some(b) = bar {
         b.finish_and_clear();
     }
@@ -111,9 +137,36 @@ pub fn feed_file(
 /// Scan the history at `path` into a report. A file that cannot be opened, or
 /// holds no data row, is an error (exit 3).
 pub fn scan_path(path: &Path, settings: &Settings, progress: bool) -> anyhow::Result<ScanReport> {
+    scan_path_with(path, settings, progress, None)
+}
+
+/// [`scan_path`], also gathering the report image's data into `plot` when given
+/// (the detectors' status is sampled every `plot.1` bytes).
+pub fn scan_path_with(
+    path: &Path,
+    settings: &Settings,
+    progress: bool,
+    plot: Option<(&mut PlotCollector, usize)>,
+) -> anyhow::Result<ScanReport> {
     let mut pipeline = Pipeline::new(settings);
     let mut builder = ReportBuilder::default();
-    let bytes = feed_file(path, &mut pipeline, &mut builder, progress)?;
+    let bytes = match plot {
+        None => feed_file(path, &mut pipeline, &mut builder, progress)?,
+        Some((plot, slice_bytes)) => {
+            let mut tee = Tee {
+                report: &mut builder,
+                plot,
+            };
+            feed_file_sampled(
+                path,
+                &mut pipeline,
+                &mut tee,
+                progress,
+                slice_bytes,
+                |p, t| t.plot.sample_status(&p.status().evidence),
+            )?
+        }
+    };
     if pipeline.rows() == 0 {
         let what = if bytes == 0 {
             "the file is empty".to_owned()

@@ -1,0 +1,82 @@
+//! `rhoscope scan --plot IMAGE`: gather the report image's data during the one
+//! pass of the scan, draw it with [`crate::report_plot`], and write the file.
+
+use std::path::{Path, PathBuf};
+
+use anyhow::{Context, anyhow};
+
+use crate::alarm::Level;
+use crate::report::ScanReport;
+use crate::report_plot::{ImageFormat, PlotCollector, render};
+use crate::settings::Settings;
+
+use super::scan::scan_path_with;
+
+/// How many times over the file the detectors' status is sampled for the
+/// growth and balance panels (more than the plot is wide).
+const STATUS_SAMPLES: u64 = 4000;
+/// Bounds on the bytes fed between two samples.
+const SLICE_BYTES: (u64, u64) = (256, 1 << 20);
+
+/// Check the image path before reading anything: its extension picks the format.
+pub fn target(path: &Path) -> anyhow::Result<(PathBuf, ImageFormat)> {
+    let format = ImageFormat::from_path(path).ok_or_else(|| {
+        anyhow!(
+            "--plot '{}': the image name must end in .svg or .png",
+            path.display()
+        )
+    })?;
+    Ok((path.to_path_buf(), format))
+}
+
+/// Scan `file` and write the report image to `target`; returns the report.
+pub fn scan_and_draw(
+    file: &Path,
+    settings: &Settings,
+    progress: bool,
+    (image, format): (PathBuf, ImageFormat),
+) -> anyhow::Result<ScanReport> {
+    let size = std::fs::metadata(file).map(|m| m.len()).unwrap_or(0);
+    let slice = (size / STATUS_SAMPLES).clamp(SLICE_BYTES.0, SLICE_BYTES.1) as usize;
+    let mut collector = PlotCollector::new();
+    let report = scan_path_with(file, settings, progress, Some((&mut collector, slice)))?;
+    let verdict = match report.status {
+        Level::Ok => "ok",
+        Level::Warning => "warning",
+        Level::Critical => "critical",
+    };
+    let critical = report
+        .alarms
+        .iter()
+        .filter(|a| a.level == Level::Critical)
+        .count();
+    let figures = vec![
+        ("rows".to_string(), report.rows.to_string()),
+        (
+            "alarms".to_string(),
+            format!("{} ({critical} critical)", report.alarms.len()),
+        ),
+    ];
+    let data = collector.finish(&report.file, verdict, figures);
+    let bytes = render(&data, format)?;
+    write_replacing(&image, &bytes)?;
+    eprintln!("rhoscope: report image written to {}", image.display());
+    Ok(report)
+}
+
+/// Write `bytes` to `path` through a temporary file in the same directory and
+/// a rename, so a reader never sees half an image.
+fn write_replacing(path: &Path, bytes: &[u8]) -> anyhow::Result<()> {
+    let name = path
+        .file_name()
+        .ok_or_else(|| anyhow!("--plot '{}': not a file name", path.display()))?;
+    let mut tmp_name = std::ffi::OsString::from(".");
+    tmp_name.push(name);
+    tmp_name.push(format!(".{}.tmp", std::process::id()));
+    let tmp = path.with_file_name(tmp_name);
+    std::fs::write(&tmp, bytes).with_context(|| format!("{}: cannot write", tmp.display()))?;
+    std::fs::rename(&tmp, path).with_context(|| {
+        let _ = std::fs::remove_file(&tmp);
+        format!("{}: cannot write", path.display())
+    })
+}
