@@ -19,10 +19,11 @@ use super::theme::Theme;
 const FALLING_FAST: f64 = -0.5;
 
 /// Trend of the step across the window: relative change from its left edge to
-/// its right edge, from a least-squares fit of ln dt.
-pub fn trend_across(s: &AppState, x: (f64, f64)) -> Option<f64> {
-    let col = s.col(Role::StepSize)?;
-    let per_unit = relative_change_per_unit(s.table.recent(col, x.0, x.1))?;
+/// its right edge, from a least-squares fit of ln dt to the points drawn (the
+/// window's extremes per column of the chart, so the cost does not grow with
+/// the rows).
+pub fn trend_across(points: &[(f64, f64)], x: (f64, f64)) -> Option<f64> {
+    let per_unit = relative_change_per_unit(points.iter().copied())?;
     let span = x.1 - x.0;
     Some(((1.0 + per_unit).ln() * span).exp_m1())
 }
@@ -40,7 +41,7 @@ pub fn chart(f: &mut Frame, area: Rect, s: &AppState, t: &Theme, x_labels: bool)
     };
     let width = usize::from(area.width.saturating_sub(10)).max(1);
     let points = s.table.points(col, x.0, x.1, width);
-    let trend = trend_across(s, x);
+    let trend = trend_across(&points, x);
     let (arrow, lvl) = match trend {
         Some(r) if r <= FALLING_FAST => ("↓ falling fast ▲", Level::Warning),
         Some(r) if r < -0.01 => ("↘ falling", Level::Ok),
