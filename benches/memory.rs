@@ -54,7 +54,11 @@ fn main() {
             i += 1;
         }
         let mut batch = Batch::default();
-        pipeline.feed(text.as_bytes(), Some(start.elapsed().as_secs_f64()), &mut batch);
+        pipeline.feed(
+            text.as_bytes(),
+            Some(start.elapsed().as_secs_f64()),
+            &mut batch,
+        );
         batch.status = Some(pipeline.status().clone());
         state.update(Msg::Data(Box::new(batch)));
         text.clear();

@@ -19,7 +19,9 @@ const ROWS: u32 = 200_000;
 const PER_BATCH: u32 = 500;
 
 fn state() -> AppState {
-    let names = ["time", "dt", "step", "ke", "ie", "wext", "probe_a", "probe_b"];
+    let names = [
+        "time", "dt", "step", "ke", "ie", "wext", "probe_a", "probe_b",
+    ];
     let roles = vec![
         Role::Time,
         Role::StepSize,
@@ -66,7 +68,16 @@ fn state() -> AppState {
             let c = (2.0 * std::f64::consts::PI * 50.0 * t).cos();
             b.push_row(
                 u64::from(i) + 2,
-                &[t, 1e-5, f64::from(i), 0.5 + 0.5 * c, 0.5 - 0.5 * c, 1.0, c, -c],
+                &[
+                    t,
+                    1e-5,
+                    f64::from(i),
+                    0.5 + 0.5 * c,
+                    0.5 - 0.5 * c,
+                    1.0,
+                    c,
+                    -c,
+                ],
             );
             i += 1;
         }
