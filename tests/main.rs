@@ -4,6 +4,7 @@
 mod detect_checks;
 mod limits_cli;
 mod parse_formats;
+mod parse_props;
 mod report_plot;
 mod scan_cli;
 mod ui_dashboard;

@@ -239,3 +239,19 @@ fn fixtures_parse() {
         assert!(!ev.rows.is_empty(), "{}", path.display());
     }
 }
+
+#[test]
+fn fixed_width_fortran_table() {
+    let path =
+        std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/fortran_fixed.txt");
+    let ev = read(&std::fs::read(path).unwrap());
+    assert_eq!(
+        names(&ev, ev.schemas.len() - 1),
+        ["step", "time", "kinetic", "internal", "ext work"]
+    );
+    assert!(ev.skipped.is_empty(), "{:?}", ev.skipped);
+    assert_eq!(ev.rows.len(), 5);
+    assert!(close(ev.rows[3].1[2], 0.981234e105));
+    assert!(is_field_overflow(ev.rows[4].1[3]));
+    assert_eq!(ev.rows[4].0, 8);
+}

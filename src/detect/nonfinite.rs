@@ -15,6 +15,8 @@ use crate::parse::{Schema, is_field_overflow};
 pub struct NonFinite {
     names: Vec<String>,
     counters: Vec<bool>,
+    /// Columns the user excluded (role `ignore`).
+    ignored: Vec<bool>,
     time_col: Option<usize>,
     seen_finite: Vec<bool>,
     reported: Vec<bool>,
@@ -32,6 +34,7 @@ impl NonFinite {
             counters: (0..n)
                 .map(|i| matches!(role(i), Role::Time | Role::StepNumber))
                 .collect(),
+            ignored: (0..n).map(|i| role(i) == Role::Ignore).collect(),
             time_col: roles.find(Role::Time),
             seen_finite: vec![false; n],
             reported: vec![false; n],
@@ -85,6 +88,9 @@ impl Detector for NonFinite {
         let mut dead = Vec::new();
         for i in 0..n {
             let v = sample.values[i];
+            if self.ignored[i] {
+                continue;
+            }
             if v.is_finite() {
                 self.seen_finite[i] = true;
                 continue;

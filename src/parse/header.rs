@@ -61,6 +61,61 @@ fn whitespace_names(text: &str) -> Vec<String> {
     names
 }
 
+/// Names of a whitespace-separated header whose names hold spaces
+/// (`ext work [J]`), matched to the fields of the first data row by position:
+/// each header word goes to the field whose gap-to-gap span holds the word's
+/// middle. `None` unless every field gets at least one word.
+pub fn align_whitespace(text: &str, data: &[u8]) -> Option<Vec<Column>> {
+    let fields = spans(data.iter().map(|&b| b == b' ' || b == b'\t' || b == b'\r'));
+    if fields.len() < 2 {
+        return None;
+    }
+    let chars: Vec<char> = text.chars().collect();
+    // A bracketed unit standing alone belongs to the word before it.
+    let mut words: Vec<(usize, usize)> = Vec::new();
+    for (a, b) in spans(chars.iter().map(|c| c.is_whitespace())) {
+        let unit = matches!((chars[a], chars[b - 1]), ('[', ']') | ('(', ')'));
+        match words.last_mut() {
+            Some(last) if unit => last.1 = b,
+            _ => words.push((a, b)),
+        }
+    }
+    // Boundaries between fields: the middle of each gap.
+    let bounds: Vec<usize> = fields.windows(2).map(|w| (w[0].1 + w[1].0) / 2).collect();
+    let mut names: Vec<Vec<String>> = vec![Vec::new(); fields.len()];
+    for (a, b) in words {
+        let mid = (a + b) / 2;
+        let col = bounds.iter().take_while(|&&x| x <= mid).count();
+        names[col].push(chars[a..b].iter().collect());
+    }
+    if names.iter().any(Vec::is_empty) {
+        return None;
+    }
+    Some(names.iter().map(|w| split_unit(&w.join(" "))).collect())
+}
+
+/// Start and end (exclusive) of each run of non-blank items.
+fn spans(blank: impl Iterator<Item = bool>) -> Vec<(usize, usize)> {
+    let mut out = Vec::new();
+    let mut start = None;
+    let mut len = 0;
+    for (i, is_blank) in blank.enumerate() {
+        match (is_blank, start) {
+            (false, None) => start = Some(i),
+            (true, Some(a)) => {
+                out.push((a, i));
+                start = None;
+            }
+            _ => {}
+        }
+        len = i + 1;
+    }
+    if let Some(a) = start {
+        out.push((a, len));
+    }
+    out
+}
+
 /// `Time [s]` → (`Time`, `s`); `kinetic energy (J)` → (`kinetic energy`, `J`);
 /// `disp/mm` → (`disp`, `mm`); `W_ext` → (`W_ext`, none).
 pub fn split_unit(raw: &str) -> Column {
@@ -123,6 +178,16 @@ mod tests {
         let cols = columns("time [s]  ke (J) w_ext", Delimiter::Whitespace);
         let names: Vec<_> = cols.iter().map(|c| c.name.as_str()).collect();
         assert_eq!(names, ["time", "ke", "w_ext"]);
+    }
+
+    #[test]
+    fn aligned_header_with_spaces_in_names() {
+        let head = "    step      time [s]     kinetic [J]   ext work [J]";
+        let row = b"       1  0.100000D-03  0.000000D+00  0.000000D+00";
+        let cols = align_whitespace(head, row).unwrap_or_default();
+        let names: Vec<_> = cols.iter().map(|c| c.name.as_str()).collect();
+        assert_eq!(names, ["step", "time", "kinetic", "ext work"]);
+        assert_eq!(cols[3].unit.as_deref(), Some("J"));
     }
 
     #[test]

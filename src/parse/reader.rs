@@ -36,6 +36,8 @@ pub struct Reader {
     names: Vec<String>,
     /// Text of the last comment line before the first schema (a header may hide there).
     last_comment: Option<Vec<u8>>,
+    /// Text of the header in force, kept until the first row to align names.
+    header_text: Option<String>,
     time_col: Option<usize>,
     last_time: Option<f64>,
     rows_in_segment: u64,
@@ -58,6 +60,7 @@ impl Reader {
             schema: None,
             names: Vec::new(),
             last_comment: None,
+            header_text: None,
             time_col: None,
             last_time: None,
             rows_in_segment: 0,
@@ -200,17 +203,18 @@ impl Reader {
                     self.mode = Mode::Delimited(Some(g));
                     g
                 });
-                self.delimited_line(t, d, sink);
+                self.delimited_line(line, t, d, sink);
             }
             _ => {}
         }
     }
 
-    fn delimited_line(&mut self, t: &[u8], d: Delimiter, sink: &mut dyn RowSink) {
+    /// One line of delimited text: `raw` as in the file, `t` trimmed.
+    fn delimited_line(&mut self, raw: &[u8], t: &[u8], d: Delimiter, sink: &mut dyn RowSink) {
         let err = match delimited::parse_row(t, d, &mut self.values) {
             Ok(()) => {
                 let values = std::mem::take(&mut self.values);
-                self.data_row(&values, d, sink);
+                self.data_row(raw, &values, d, sink);
                 self.values = values;
                 return;
             }
@@ -235,6 +239,7 @@ impl Reader {
                     sink.segment(self.line, SegmentReason::NewHeader);
                 }
                 self.set_schema(Schema { columns: cols }, sink);
+                self.header_text = (d == Delimiter::Whitespace).then(|| header::decode(raw).0);
             }
             LineKind::Mixed | LineKind::Data => {
                 if self.schema.is_none() && self.opts_delimiter().is_none() {
@@ -253,8 +258,9 @@ impl Reader {
         }
     }
 
-    fn data_row(&mut self, values: &[f64], d: Delimiter, sink: &mut dyn RowSink) {
+    fn data_row(&mut self, line: &[u8], values: &[f64], d: Delimiter, sink: &mut dyn RowSink) {
         let n = values.len();
+        let header_text = self.header_text.take();
         match &self.schema {
             None => {
                 let cols = self
@@ -262,24 +268,38 @@ impl Reader {
                     .unwrap_or_else(|| generic_columns(0, n));
                 self.set_schema(Schema { columns: cols }, sink);
             }
+            Some(s)
+                if s.columns.len() > n && self.rows_in_segment == 0 && header_text.is_some() =>
+            {
+                // Names with spaces in a whitespace-separated header: align by position.
+                let aligned = header_text
+                    .as_deref()
+                    .and_then(|t| header::align_whitespace(t, line))
+                    .filter(|c| c.len() == n);
+                match aligned {
+                    Some(cols) => self.set_schema(Schema { columns: cols }, sink),
+                    None => self.rename_to_fit(n, sink),
+                }
+            }
             Some(s) if s.columns.len() != n && self.rows_in_segment == 0 => {
-                // The header and the rows disagree: keep the names that exist,
-                // number the rest, and say so once.
-                let mut cols: Vec<Column> = s.columns.iter().take(n).cloned().collect();
-                let have = cols.len();
-                cols.extend(generic_columns(have, n));
-                sink.skipped(
-                    self.line,
-                    SkipReason::HeaderMismatch {
-                        names: s.columns.len(),
-                        fields: n,
-                    },
-                );
-                self.set_schema(Schema { columns: cols }, sink);
+                self.rename_to_fit(n, sink);
             }
             _ => {}
         }
         self.emit_row(values, sink);
+    }
+
+    /// The header and the rows disagree: keep the names that exist, number the
+    /// rest, and say so once.
+    fn rename_to_fit(&mut self, n: usize, sink: &mut dyn RowSink) {
+        let Some(s) = self.schema.as_ref() else {
+            return;
+        };
+        let names = s.columns.len();
+        let mut cols: Vec<Column> = s.columns.iter().take(n).cloned().collect();
+        cols.extend(generic_columns(cols.len(), n));
+        sink.skipped(self.line, SkipReason::HeaderMismatch { names, fields: n });
+        self.set_schema(Schema { columns: cols }, sink);
     }
 
     fn emit_row(&mut self, values: &[f64], sink: &mut dyn RowSink) {

@@ -1,0 +1,155 @@
+//! Ingest speed: a generated 14-column history of values like `1.234567890E-03`
+//! read into f64 by the reader alone, and through the whole pipeline (reader +
+//! detectors + alarm book). Before the criterion groups it prints the time that
+//! `wc -l` takes on the same file, the floor for any line-oriented reader.
+
+use std::hint::black_box;
+use std::io::Write;
+use std::path::PathBuf;
+use std::time::Instant;
+
+use criterion::{Criterion, Throughput, criterion_group, criterion_main};
+use rhoscope::alarm::Alarm;
+use rhoscope::parse::roles::RoleRules;
+use rhoscope::parse::{ParseOptions, Reader, RowSink, Schema, SegmentReason, SkipReason};
+use rhoscope::pipeline::Pipeline;
+use rhoscope::settings::Settings;
+
+const COLUMNS: usize = 14;
+const TARGET_BYTES: usize = 128 << 20;
+const CHUNK: usize = 1 << 20;
+
+/// Sums every value so that the parse cannot be optimised away.
+#[derive(Default)]
+struct Sum {
+    rows: u64,
+    total: f64,
+}
+
+impl RowSink for Sum {
+    fn schema(&mut self, _line: u64, _schema: &Schema) {}
+    fn row(&mut self, _line: u64, values: &[f64]) {
+        self.rows += 1;
+        self.total += values.iter().sum::<f64>();
+    }
+    fn segment(&mut self, _line: u64, _reason: SegmentReason) {}
+    fn skipped(&mut self, _line: u64, _reason: SkipReason) {}
+}
+
+/// `1.234567890E-03`-style text: 10 significant digits, two-digit exponent.
+fn sci(v: f64, out: &mut Vec<u8>) {
+    let s = format!("{v:.9E}");
+    let (mant, exp) = s.split_once('E').unwrap_or((&s, "0"));
+    let e: i32 = exp.parse().unwrap_or(0);
+    let sign = if e < 0 { '-' } else { '+' };
+    let _ = write!(out, "{mant:>16}E{sign}{:02}", e.abs());
+}
+
+/// A deterministic history: a header and rows of decaying, oscillating values.
+fn generate(sep: &str) -> Vec<u8> {
+    let mut out = Vec::with_capacity(TARGET_BYTES + 4096);
+    let names: Vec<String> = (0..COLUMNS).map(|i| format!("q{i}")).collect();
+    out.extend(names.join(sep).as_bytes());
+    out.push(b'\n');
+    let mut state: u64 = 0x2545_f491_4f6c_dd1d;
+    let mut row = 0u64;
+    while out.len() < TARGET_BYTES {
+        for c in 0..COLUMNS {
+            // xorshift64: a fixed, portable sequence.
+            state ^= state << 13;
+            state ^= state >> 7;
+            state ^= state << 17;
+            let noise = (state >> 11) as f64 / (1u64 << 53) as f64 - 0.5;
+            let t = row as f64 * 1e-4;
+            let v =
+                (1.0 + c as f64) * (t * (3.0 + c as f64)).sin() * 10f64.powi((c % 7) as i32 - 3)
+                    + noise * 1e-6;
+            if c > 0 {
+                out.extend(sep.as_bytes());
+            }
+            sci(v, &mut out);
+        }
+        out.push(b'\n');
+        row += 1;
+    }
+    out
+}
+
+fn write_file(name: &str, bytes: &[u8]) -> PathBuf {
+    let dir = PathBuf::from(env!("CARGO_TARGET_TMPDIR"));
+    let path = dir.join(name);
+    if let Err(e) = std::fs::write(&path, bytes) {
+        eprintln!("cannot write {}: {e}", path.display());
+    }
+    path
+}
+
+/// Best of three runs of `wc -l` on the file (it is in the page cache by then).
+fn time_wc(path: &PathBuf, bytes: usize) {
+    let mut best = f64::INFINITY;
+    for _ in 0..3 {
+        let start = Instant::now();
+        let ok = std::process::Command::new("wc")
+            .arg("-l")
+            .arg(path)
+            .output()
+            .is_ok_and(|o| o.status.success());
+        if !ok {
+            eprintln!("wc -l not available");
+            return;
+        }
+        best = best.min(start.elapsed().as_secs_f64());
+    }
+    println!(
+        "wc -l {}: {:.3} s for {:.1} MB = {:.2} GB/s",
+        path.display(),
+        best,
+        bytes as f64 / 1e6,
+        bytes as f64 / best / 1e9
+    );
+}
+
+fn read_all(bytes: &[u8]) -> Sum {
+    let mut r = Reader::new(&ParseOptions::default(), &RoleRules::default());
+    let mut sum = Sum::default();
+    for chunk in bytes.chunks(CHUNK) {
+        r.feed(chunk, &mut sum);
+    }
+    r.finish(&mut sum);
+    sum
+}
+
+fn bench(c: &mut Criterion) {
+    for (label, sep) in [("whitespace", " "), ("comma", ",")] {
+        let data = generate(sep);
+        let path = write_file(&format!("ingest-{label}.txt"), &data);
+        time_wc(&path, data.len());
+        let check = read_all(&data);
+        println!(
+            "{label}: {} rows of {COLUMNS} columns, {} bytes",
+            check.rows,
+            data.len()
+        );
+        let mut g = c.benchmark_group(format!("ingest/{label}"));
+        g.throughput(Throughput::Bytes(data.len() as u64));
+        g.sample_size(10);
+        g.bench_function("reader", |b| {
+            b.iter(|| black_box(read_all(black_box(&data)).total))
+        });
+        g.bench_function("pipeline", |b| {
+            b.iter(|| {
+                let mut p = Pipeline::new(&Settings::default());
+                let mut alarms: Vec<Alarm> = Vec::new();
+                for chunk in data.chunks(CHUNK) {
+                    p.feed(chunk, None, &mut alarms);
+                }
+                p.finish(&mut alarms);
+                black_box(p.rows())
+            })
+        });
+        g.finish();
+    }
+}
+
+criterion_group!(benches, bench);
+criterion_main!(benches);
