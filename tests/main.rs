@@ -2,6 +2,7 @@
 #![allow(clippy::unwrap_used)]
 
 mod detect_checks;
+mod guard;
 mod limits_cli;
 mod parse_formats;
 mod parse_props;

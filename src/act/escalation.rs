@@ -167,6 +167,11 @@ impl Escalation {
             && (self.next >= self.cfg.actions.len() || self.stopped)
     }
 
+    /// True while a started command has not ended yet.
+    pub fn busy(&self) -> bool {
+        self.running.is_some()
+    }
+
     /// When the next decision is due (end of the grace period), if one is pending.
     pub fn next_deadline(&self) -> Option<Instant> {
         if self.running.is_some() || self.finished() || self.trigger.is_none() {

@@ -1,6 +1,7 @@
 //! Command-line structures (clap derive). No logic: `settings` validates them,
 //! `commands` wires them. One file per subcommand's arguments.
 
+pub mod actions;
 pub mod columns;
 pub mod demo;
 pub mod guard;

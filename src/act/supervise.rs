@@ -1,0 +1,280 @@
+//! The guard's loop: bytes from a [`Source`] go through the shared [`Pipeline`]
+//! (so alarms are the same, line for line, as `scan` gives on the same bytes);
+//! alarms go to the event log and, when they trigger it, to the [`Escalation`].
+//!
+//! Which alarm may start the escalation: only one in the segment being written.
+//! The backlog found at start is read first; a critical alarm there is held,
+//! dropped if a later restart (new segment) follows it, and acted on only when
+//! the run writes another row in that same segment — an old crash before a
+//! restart, or a finished crashed file, stops nothing. Once caught up, a
+//! triggering alarm acts at once.
+
+use std::time::{Duration, Instant};
+
+use super::{Activity, Escalation, EventLog, ProcessId};
+use crate::alarm::Alarm;
+use crate::parse::{SegmentReason, SkipReason};
+use crate::pipeline::{Pipeline, PipelineSink};
+use crate::source::{Event, Source};
+
+/// When the loop ends besides the escalation finishing.
+#[derive(Debug, Clone, Copy, Default)]
+pub struct SuperviseOptions {
+    /// End when the file has not grown for this long.
+    pub idle_exit: Option<Duration>,
+    /// End when this process ends; a live process counts as a run still going.
+    pub pid: Option<ProcessId>,
+    /// Longest single sleep (bounds reaction to a command's end or a pid's exit).
+    pub max_wait: Duration,
+}
+
+/// Why the loop ended.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum End {
+    /// Every action was taken, or the run stopped writing after one.
+    Escalated,
+    /// The file did not grow for the idle time.
+    Idle,
+    /// The `--pid` process ended.
+    PidEnded,
+}
+
+/// What the loop saw and did.
+#[derive(Debug, Clone)]
+pub struct Summary {
+    pub end: End,
+    /// Every alarm raised, in file order.
+    pub alarms: Vec<Alarm>,
+    /// The escalation was started.
+    pub acted: bool,
+    /// An action failed, was refused or timed out.
+    pub failed: bool,
+    /// Data rows read.
+    pub rows: u64,
+}
+
+impl Summary {
+    /// 0 no critical alarm acted on; 2 acted; 4 acted but an action failed.
+    pub fn exit_code(&self) -> i32 {
+        match (self.acted, self.failed) {
+            (false, _) => 0,
+            (true, false) => 2,
+            (true, true) => 4,
+        }
+    }
+}
+
+/// What the pipeline reported, in order.
+enum Seen {
+    Row,
+    Segment,
+    Alarm(Alarm),
+}
+
+#[derive(Default)]
+struct Collect(Vec<Seen>);
+
+impl PipelineSink for Collect {
+    fn alarm(&mut self, alarm: &Alarm) {
+        self.0.push(Seen::Alarm(alarm.clone()));
+    }
+    fn row(&mut self, _line: u64, _values: &[f64]) {
+        self.0.push(Seen::Row);
+    }
+    fn segment(&mut self, _line: u64, _reason: SegmentReason) {
+        self.0.push(Seen::Segment);
+    }
+    fn skipped(&mut self, _line: u64, _reason: &SkipReason) {}
+}
+
+struct Loop<'a> {
+    pipeline: &'a mut Pipeline,
+    escalation: &'a mut Escalation,
+    log: &'a mut EventLog,
+    alarms: Vec<Alarm>,
+    caught_up: bool,
+    /// A triggering alarm from the backlog, waiting for proof the segment goes on.
+    held: Option<Alarm>,
+    started: Instant,
+}
+
+impl Loop<'_> {
+    fn handle(&mut self, seen: Vec<Seen>, now: Instant) {
+        for s in seen {
+            match s {
+                Seen::Segment => {
+                    if let Some(a) = self.held.take() {
+                        self.log.note(&format!(
+                            "the alarm at line {} belongs to a run that was restarted: no action",
+                            a.line
+                        ));
+                    }
+                }
+                Seen::Row => {
+                    if self.caught_up
+                        && let Some(a) = self.held.take()
+                    {
+                        self.log.note(&format!(
+                            "the run goes on writing after the alarm at line {} \
+                             found when guard started: acting on it",
+                            a.line
+                        ));
+                        self.act(&a, now);
+                    }
+                }
+                Seen::Alarm(a) => {
+                    self.log.alarm(&a);
+                    if self.escalation.triggered_by(&a) {
+                        if self.caught_up {
+                            self.act(&a, now);
+                        } else if self.held.is_none() {
+                            self.held = Some(a.clone());
+                        }
+                    }
+                    self.alarms.push(a);
+                }
+            }
+        }
+    }
+
+    fn act(&mut self, a: &Alarm, now: Instant) {
+        for r in self.escalation.on_alarm(a, now) {
+            self.log.action(&r);
+        }
+    }
+
+    fn feed(&mut self, bytes: &[u8], now: Instant) {
+        let mut c = Collect::default();
+        let arrival_s = now.duration_since(self.started).as_secs_f64();
+        self.pipeline.feed(bytes, Some(arrival_s), &mut c);
+        self.handle(c.0, now);
+    }
+
+    fn restart(&mut self, now: Instant) {
+        let mut c = Collect::default();
+        self.pipeline.restart(&mut c);
+        c.0.insert(0, Seen::Segment);
+        self.handle(c.0, now);
+    }
+}
+
+/// Follow `source` until the escalation finishes, the file goes idle or the
+/// `--pid` process ends. Errors reading the source are logged and retried.
+pub fn supervise<S: Source>(
+    source: &mut S,
+    pipeline: &mut Pipeline,
+    escalation: &mut Escalation,
+    log: &mut EventLog,
+    opts: &SuperviseOptions,
+) -> Summary {
+    let started = Instant::now();
+    let max_wait = if opts.max_wait.is_zero() {
+        Duration::from_millis(250)
+    } else {
+        opts.max_wait
+    };
+    let mut lp = Loop {
+        pipeline,
+        escalation,
+        log,
+        alarms: Vec::new(),
+        caught_up: false,
+        held: None,
+        started,
+    };
+    let mut last_growth: Option<Instant> = None;
+    let mut last_error: Option<String> = None;
+    let end = loop {
+        let now = Instant::now();
+        let mut quiet = false;
+        match source.poll() {
+            Ok(Some(Event::Data(bytes))) => {
+                last_growth = Some(now);
+                lp.feed(&bytes, now);
+            }
+            Ok(Some(Event::Restart(r))) => {
+                last_growth = Some(now);
+                lp.log
+                    .note(&format!("{}: reading it again from its start", r.describe()));
+                lp.restart(now);
+            }
+            Ok(Some(Event::Appeared)) => lp.log.note("the file is there: following it"),
+            Ok(Some(Event::Missing)) => lp
+                .log
+                .note("the file is gone: keeping what was read, waiting for it to come back"),
+            Ok(None) => quiet = true,
+            Err(e) => {
+                let msg = e.to_string();
+                if last_error.as_deref() != Some(msg.as_str()) {
+                    lp.log.note(&format!("cannot read the file: {msg}"));
+                    last_error = Some(msg);
+                }
+                quiet = true;
+            }
+        }
+        if quiet && !lp.caught_up {
+            lp.caught_up = true;
+            if let Some(a) = &lp.held {
+                lp.log.note(&format!(
+                    "a {} alarm at line {} was already in the file: acting only if the run \
+                     writes on in that segment",
+                    serde_json::to_value(a.level)
+                        .ok()
+                        .and_then(|v| v.as_str().map(str::to_owned))
+                        .unwrap_or_default(),
+                    a.line
+                ));
+            }
+        }
+        let pid_alive = opts.pid.map(|p| p.alive());
+        let activity = Activity {
+            last_growth,
+            pid_alive,
+        };
+        for r in lp.escalation.tick(Instant::now(), &activity) {
+            lp.log.action(&r);
+        }
+        if lp.escalation.finished() {
+            break End::Escalated;
+        }
+        if !quiet {
+            continue;
+        }
+        if lp.escalation.busy() {
+            // A command is running: keep reading, check it often, never exit under it.
+            source.wait(max_wait.min(Duration::from_millis(20)));
+            continue;
+        }
+        if pid_alive == Some(false) {
+            break End::PidEnded;
+        }
+        let now = Instant::now();
+        let idle_since = last_growth.unwrap_or(started);
+        let mut wait = max_wait;
+        if let Some(idle) = opts.idle_exit {
+            let due = idle_since + idle;
+            if now >= due {
+                break End::Idle;
+            }
+            wait = wait.min(due - now);
+        }
+        if let Some(due) = lp.escalation.next_deadline() {
+            wait = wait.min(due.saturating_duration_since(now));
+        }
+        source.wait(wait);
+    };
+    if let Some(a) = &lp.held {
+        lp.log.note(&format!(
+            "the alarm at line {} was in the file before guard started and the run wrote \
+             nothing after it: no action taken",
+            a.line
+        ));
+    }
+    Summary {
+        end,
+        alarms: lp.alarms,
+        acted: lp.escalation.acted(),
+        failed: lp.escalation.any_failed(),
+        rows: lp.pipeline.rows(),
+    }
+}
