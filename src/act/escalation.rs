@@ -161,8 +161,10 @@ impl Escalation {
 
     /// True when nothing more will happen: every action fired (and any command
     /// ended), or the run stopped writing so no further step is needed.
+    /// With no action configured it never finishes: alarms are only logged.
     pub fn finished(&self) -> bool {
-        self.trigger.is_some()
+        !self.cfg.actions.is_empty()
+            && self.trigger.is_some()
             && self.running.is_none()
             && (self.next >= self.cfg.actions.len() || self.stopped)
     }

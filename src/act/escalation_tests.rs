@@ -249,3 +249,14 @@ fn stop_file_already_there_is_a_warning_at_start() {
     assert_eq!(w.len(), 1);
     assert!(w[0].contains("already exists"));
 }
+
+#[test]
+fn with_no_action_alarms_are_only_logged_and_it_never_finishes() {
+    let mut e = Escalation::new(config(Vec::new()));
+    assert!(
+        e.on_alarm(&alarm(Level::Critical, 3), Instant::now())
+            .is_empty()
+    );
+    assert!(e.acted());
+    assert!(!e.finished(), "guard goes on logging alarms");
+}

@@ -16,7 +16,7 @@ pub use escalation::{ActionReport, ActionSpec, Activity, Escalation, EscalationC
 pub use log::{EventLog, Record, stderr_line, utc_clock};
 pub use process::{ProcessId, Refusal, parse_signal, start_ticks_from_stat};
 pub use stopfile::{check_at_start, create_stop_file};
-pub use supervise::{supervise, End, Summary, SuperviseOptions};
+pub use supervise::{End, Summary, SuperviseOptions, supervise};
 
 #[cfg(test)]
 mod escalation_tests;

@@ -68,7 +68,7 @@ impl Summary {
 enum Seen {
     Row,
     Segment,
-    Alarm(Alarm),
+    Alarm(Box<Alarm>),
 }
 
 #[derive(Default)]
@@ -76,7 +76,7 @@ struct Collect(Vec<Seen>);
 
 impl PipelineSink for Collect {
     fn alarm(&mut self, alarm: &Alarm) {
-        self.0.push(Seen::Alarm(alarm.clone()));
+        self.0.push(Seen::Alarm(Box::new(alarm.clone())));
     }
     fn row(&mut self, _line: u64, _values: &[f64]) {
         self.0.push(Seen::Row);
@@ -123,6 +123,7 @@ impl Loop<'_> {
                     }
                 }
                 Seen::Alarm(a) => {
+                    let a = *a;
                     self.log.alarm(&a);
                     if self.escalation.triggered_by(&a) {
                         if self.caught_up {
@@ -194,8 +195,10 @@ pub fn supervise<S: Source>(
             }
             Ok(Some(Event::Restart(r))) => {
                 last_growth = Some(now);
-                lp.log
-                    .note(&format!("{}: reading it again from its start", r.describe()));
+                lp.log.note(&format!(
+                    "{}: reading it again from its start",
+                    r.describe()
+                ));
                 lp.restart(now);
             }
             Ok(Some(Event::Appeared)) => lp.log.note("the file is there: following it"),
@@ -214,6 +217,10 @@ pub fn supervise<S: Source>(
         }
         if quiet && !lp.caught_up {
             lp.caught_up = true;
+            lp.log.note(&format!(
+                "caught up: {} lines read, following live",
+                lp.pipeline.lines()
+            ));
             if let Some(a) = &lp.held {
                 lp.log.note(&format!(
                     "a {} alarm at line {} was already in the file: acting only if the run \

@@ -5,7 +5,8 @@ use std::time::Duration;
 
 use clap::Args;
 
-use super::actions::{parse_duration, ActionArgs};
+use super::actions::{ActionArgs, parse_duration};
+use super::input::InputArgs;
 
 const GUARD_EXAMPLES: &str = "\
 Examples:
@@ -35,6 +36,8 @@ pub struct GuardArgs {
     pub file: PathBuf,
     #[command(flatten)]
     pub actions: ActionArgs,
+    #[command(flatten)]
+    pub input: InputArgs,
     /// End when the file has not grown for this long (500ms, 3s, 2m). Make it
     /// longer than the output interval plus the filesystem's attribute-cache lag.
     #[arg(long, value_name = "DURATION", value_parser = parse_duration)]

@@ -5,14 +5,13 @@
 use std::path::Path;
 use std::time::Duration;
 
-use anyhow::{bail, Context};
+use anyhow::{Context, bail};
 
 use crate::act::{
-    parse_signal, supervise, ActionSpec, EscalationConfig, EventLog, ProcessId,
-    SuperviseOptions,
+    ActionSpec, EscalationConfig, EventLog, ProcessId, SuperviseOptions, parse_signal, supervise,
 };
 use crate::act::{End, Escalation};
-use crate::cli::actions::{parse_duration, ActionArgs};
+use crate::cli::actions::{ActionArgs, parse_duration};
 use crate::cli::guard::GuardArgs;
 use crate::pipeline::Pipeline;
 use crate::settings::Settings;
@@ -123,7 +122,10 @@ pub fn escalation_from_args(
 pub fn run(args: GuardArgs) -> anyhow::Result<i32> {
     let settings = Settings::load(&args.input, &args.file)?;
     if args.file.is_dir() {
-        bail!("'{}' is a directory, not a history file", args.file.display());
+        bail!(
+            "'{}' is a directory, not a history file",
+            args.file.display()
+        );
     }
     if args.file.exists() {
         std::fs::File::open(&args.file)
@@ -189,7 +191,13 @@ pub fn run(args: GuardArgs) -> anyhow::Result<i32> {
         pid,
         max_wait: args.poll.min(Duration::from_millis(250)),
     };
-    let out = supervise(&mut follower, &mut pipeline, &mut escalation, &mut log, &opts);
+    let out = supervise(
+        &mut follower,
+        &mut pipeline,
+        &mut escalation,
+        &mut log,
+        &opts,
+    );
     let why = match out.end {
         End::Escalated => "the escalation is complete",
         End::Idle => "the file stopped growing",

@@ -29,7 +29,10 @@ fn escalation_goes_in_order_while_the_run_keeps_writing() {
     let mark = dir.path().join("cancelled");
     // The writer ignores STOP (it watches another name), like a solver that does not poll.
     let (out, w) = crashing_run(dir.path(), &dir.path().join("never"), 30);
-    let run = format!("echo \"$RHOSCOPE_DETECTOR $RHOSCOPE_LINE\" > '{}'", mark.display());
+    let run = format!(
+        "echo \"$RHOSCOPE_DETECTOR $RHOSCOPE_LINE\" > '{}'",
+        mark.display()
+    );
     let mut g = Guard::start(
         dir.path(),
         &out,
@@ -51,13 +54,22 @@ fn escalation_goes_in_order_while_the_run_keeps_writing() {
         .iter()
         .map(|a| {
             (
-                a["action"].as_str().unwrap().split(' ').next().unwrap().to_string(),
+                a["action"]
+                    .as_str()
+                    .unwrap()
+                    .split(' ')
+                    .next()
+                    .unwrap()
+                    .to_string(),
                 a["outcome"].as_str().unwrap().to_string(),
             )
         })
         .collect();
     let want = [("touch", "done"), ("run", "started"), ("run", "done")];
-    let want: Vec<(String, String)> = want.iter().map(|(a, b)| (a.to_string(), b.to_string())).collect();
+    let want: Vec<(String, String)> = want
+        .iter()
+        .map(|(a, b)| (a.to_string(), b.to_string()))
+        .collect();
     assert_eq!(acts, want);
     // Stop the writer (it would otherwise run its 30 s).
     fs::write(dir.path().join("never"), "").unwrap();
@@ -74,11 +86,21 @@ fn no_next_step_when_the_run_stopped_within_the_grace_period() {
     let mut g = Guard::start(
         dir.path(),
         &out,
-        &["--touch", stop.to_str().unwrap(), "--run", &run, "--grace", "1s"],
+        &[
+            "--touch",
+            stop.to_str().unwrap(),
+            "--run",
+            &run,
+            "--grace",
+            "1s",
+        ],
     );
     assert_eq!(g.code(), 2, "{}", g.stderr_text());
     assert!(w.stopped());
-    assert!(!mark.exists(), "the command is not run when the stop file sufficed");
+    assert!(
+        !mark.exists(),
+        "the command is not run when the stop file sufficed"
+    );
     assert_eq!(of_kind(&g.events(), "action").len(), 1);
 }
 
@@ -200,7 +222,10 @@ fn a_hanging_command_is_killed_at_its_limit_and_reported() {
     );
     assert_eq!(g.code(), 4, "{}", g.stderr_text());
     let ev = g.events();
-    assert_eq!(of_kind(&ev, "action").last().unwrap()["outcome"], "timed out");
+    assert_eq!(
+        of_kind(&ev, "action").last().unwrap()["outcome"],
+        "timed out"
+    );
     fs::write(&stop, "").unwrap();
     let _ = w.stopped();
 }

@@ -31,7 +31,10 @@ fn a_run_that_crashes_while_writing_is_stopped_and_guard_exits_2() {
     let ev = g.events();
     let alarms = of_kind(&ev, "alarm");
     assert_eq!(alarms[0]["level"], "critical");
-    assert_eq!(alarms[0]["line"], 20_002, "first NaN row: header + 20,000 rows + 1");
+    assert_eq!(
+        alarms[0]["line"], 20_002,
+        "first NaN row: header + 20,000 rows + 1"
+    );
     let actions = of_kind(&ev, "action");
     assert_eq!(actions.len(), 1);
     assert_eq!(actions[0]["outcome"], "done");
@@ -97,7 +100,11 @@ fn a_stop_file_left_over_is_warned_about_at_start() {
         &["--touch", stop.to_str().unwrap(), "--idle-exit", "300ms"],
     );
     assert_eq!(g.code(), 0);
-    assert!(g.stderr_text().contains("already exists"), "{}", g.stderr_text());
+    assert!(
+        g.stderr_text().contains("already exists"),
+        "{}",
+        g.stderr_text()
+    );
 }
 
 #[test]
@@ -108,7 +115,16 @@ fn help_shows_examples_exit_codes_and_cautions() {
         .unwrap();
     assert_eq!(o.status.code(), Some(0));
     let text = String::from_utf8(o.stdout).unwrap();
-    for want in ["--touch", "--signal", "--pid", "--run", "--grace", "--idle-exit", "Exit codes", "advice"] {
+    for want in [
+        "--touch",
+        "--signal",
+        "--pid",
+        "--run",
+        "--grace",
+        "--idle-exit",
+        "Exit codes",
+        "advice",
+    ] {
         assert!(text.contains(want), "help lacks {want}");
     }
 }

@@ -3,7 +3,7 @@
 
 use std::time::Duration;
 
-use rhoscope::act::{supervise, Escalation, EscalationConfig, EventLog, SuperviseOptions};
+use rhoscope::act::{Escalation, EscalationConfig, EventLog, SuperviseOptions, supervise};
 use rhoscope::alarm::Alarm;
 use rhoscope::pipeline::Pipeline;
 use rhoscope::settings::Settings;
@@ -61,9 +61,15 @@ fn key(a: &Alarm) -> (u64, &'static str, rhoscope::alarm::Level, String) {
 fn the_same_alarms_whole_or_in_any_chunks() {
     let text = history();
     let want: Vec<_> = scan_alarms(text.as_bytes()).iter().map(key).collect();
-    assert!(want.len() >= 2, "the history raises alarms in both segments: {want:?}");
+    assert!(
+        want.len() >= 2,
+        "the history raises alarms in both segments: {want:?}"
+    );
     for chunk in [1 << 20, 4096, 97, 13, 1] {
-        let got: Vec<_> = guard_alarms(text.as_bytes(), chunk).iter().map(key).collect();
+        let got: Vec<_> = guard_alarms(text.as_bytes(), chunk)
+            .iter()
+            .map(key)
+            .collect();
         assert_eq!(got, want, "chunks of {chunk} bytes");
     }
 }

@@ -23,7 +23,7 @@ pub const DT_S: f64 = 1e-3;
 /// simulated time `t0_s`.
 pub fn healthy(rows: usize, t0_s: f64) -> String {
     let omega = 2.0 * std::f64::consts::PI * 5.0;
-    let zeta = 0.02;
+    let zeta: f64 = 0.02;
     let wd = omega * (1.0 - zeta * zeta).sqrt();
     let mut s = String::with_capacity(rows * 40);
     for i in 0..rows {
@@ -99,10 +99,6 @@ impl Writer {
             Some(1) => false,
             _ => panic!("writer failed: {st:?}"),
         }
-    }
-
-    pub fn id(&self) -> u32 {
-        self.child.id()
     }
 }
 
