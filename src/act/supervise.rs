@@ -37,6 +37,8 @@ pub enum End {
     Idle,
     /// The `--pid` process ended.
     PidEnded,
+    /// The source has nothing more to give (a scripted source played out).
+    SourceEnded,
 }
 
 /// What the loop saw and did.
@@ -64,98 +66,82 @@ impl Summary {
     }
 }
 
-/// What the pipeline reported, in order.
-enum Seen {
-    Row,
-    Segment,
-    Alarm(Box<Alarm>),
-}
-
-#[derive(Default)]
-struct Collect(Vec<Seen>);
-
-impl PipelineSink for Collect {
-    fn alarm(&mut self, alarm: &Alarm) {
-        self.0.push(Seen::Alarm(Box::new(alarm.clone())));
-    }
-    fn row(&mut self, _line: u64, _values: &[f64]) {
-        self.0.push(Seen::Row);
-    }
-    fn segment(&mut self, _line: u64, _reason: SegmentReason) {
-        self.0.push(Seen::Segment);
-    }
-    fn skipped(&mut self, _line: u64, _reason: &SkipReason) {}
-}
-
-struct Loop<'a> {
-    pipeline: &'a mut Pipeline,
+/// Receives the pipeline's findings as they are made, so that an alarm is acted
+/// on at its row, not after the rest of a large chunk has been read.
+struct Reactor<'a> {
     escalation: &'a mut Escalation,
     log: &'a mut EventLog,
     alarms: Vec<Alarm>,
     caught_up: bool,
     /// A triggering alarm from the backlog, waiting for proof the segment goes on.
     held: Option<Alarm>,
-    started: Instant,
 }
 
-impl Loop<'_> {
-    fn handle(&mut self, seen: Vec<Seen>, now: Instant) {
-        for s in seen {
-            match s {
-                Seen::Segment => {
-                    if let Some(a) = self.held.take() {
-                        self.log.note(&format!(
-                            "the alarm at line {} belongs to a run that was restarted: no action",
-                            a.line
-                        ));
-                    }
-                }
-                Seen::Row => {
-                    if self.caught_up
-                        && let Some(a) = self.held.take()
-                    {
-                        self.log.note(&format!(
-                            "the run goes on writing after the alarm at line {} \
-                             found when guard started: acting on it",
-                            a.line
-                        ));
-                        self.act(&a, now);
-                    }
-                }
-                Seen::Alarm(a) => {
-                    let a = *a;
-                    self.log.alarm(&a);
-                    if self.escalation.triggered_by(&a) {
-                        if self.caught_up {
-                            self.act(&a, now);
-                        } else if self.held.is_none() {
-                            self.held = Some(a.clone());
-                        }
-                    }
-                    self.alarms.push(a);
-                }
-            }
-        }
-    }
-
-    fn act(&mut self, a: &Alarm, now: Instant) {
-        for r in self.escalation.on_alarm(a, now) {
+impl Reactor<'_> {
+    fn act(&mut self, a: &Alarm) {
+        for r in self.escalation.on_alarm(a, Instant::now()) {
             self.log.action(&r);
         }
     }
 
-    fn feed(&mut self, bytes: &[u8], now: Instant) {
-        let mut c = Collect::default();
-        let arrival_s = now.duration_since(self.started).as_secs_f64();
-        self.pipeline.feed(bytes, Some(arrival_s), &mut c);
-        self.handle(c.0, now);
+    fn new_segment(&mut self) {
+        if let Some(a) = self.held.take() {
+            self.log.note(&format!(
+                "the alarm at line {} belongs to a run that was restarted: no action",
+                a.line
+            ));
+        }
+    }
+}
+
+impl PipelineSink for Reactor<'_> {
+    fn alarm(&mut self, a: &Alarm) {
+        self.log.alarm(a);
+        if self.escalation.triggered_by(a) {
+            if self.caught_up {
+                self.act(a);
+            } else if self.held.is_none() {
+                self.held = Some(a.clone());
+            }
+        }
+        self.alarms.push(a.clone());
     }
 
-    fn restart(&mut self, now: Instant) {
-        let mut c = Collect::default();
-        self.pipeline.restart(&mut c);
-        c.0.insert(0, Seen::Segment);
-        self.handle(c.0, now);
+    fn row(&mut self, _line: u64, _values: &[f64]) {
+        if self.caught_up
+            && let Some(a) = self.held.take()
+        {
+            self.log.note(&format!(
+                "the run goes on writing after the alarm at line {} found when guard \
+                 started: acting on it",
+                a.line
+            ));
+            self.act(&a);
+        }
+    }
+
+    fn segment(&mut self, _line: u64, _reason: SegmentReason) {
+        self.new_segment();
+    }
+
+    fn skipped(&mut self, _line: u64, _reason: &SkipReason) {}
+}
+
+struct Loop<'a> {
+    pipeline: &'a mut Pipeline,
+    rx: Reactor<'a>,
+    started: Instant,
+}
+
+impl Loop<'_> {
+    fn feed(&mut self, bytes: &[u8], now: Instant) {
+        let arrival_s = now.duration_since(self.started).as_secs_f64();
+        self.pipeline.feed(bytes, Some(arrival_s), &mut self.rx);
+    }
+
+    fn restart(&mut self) {
+        self.rx.new_segment();
+        self.pipeline.restart(&mut self.rx);
     }
 }
 
@@ -176,11 +162,13 @@ pub fn supervise<S: Source>(
     };
     let mut lp = Loop {
         pipeline,
-        escalation,
-        log,
-        alarms: Vec::new(),
-        caught_up: false,
-        held: None,
+        rx: Reactor {
+            escalation,
+            log,
+            alarms: Vec::new(),
+            caught_up: false,
+            held: None,
+        },
         started,
     };
     let mut last_growth: Option<Instant> = None;
@@ -195,34 +183,35 @@ pub fn supervise<S: Source>(
             }
             Ok(Some(Event::Restart(r))) => {
                 last_growth = Some(now);
-                lp.log.note(&format!(
+                lp.rx.log.note(&format!(
                     "{}: reading it again from its start",
                     r.describe()
                 ));
-                lp.restart(now);
+                lp.restart();
             }
-            Ok(Some(Event::Appeared)) => lp.log.note("the file is there: following it"),
+            Ok(Some(Event::Appeared)) => lp.rx.log.note("the file is there: following it"),
             Ok(Some(Event::Missing)) => lp
+                .rx
                 .log
                 .note("the file is gone: keeping what was read, waiting for it to come back"),
             Ok(None) => quiet = true,
             Err(e) => {
                 let msg = e.to_string();
                 if last_error.as_deref() != Some(msg.as_str()) {
-                    lp.log.note(&format!("cannot read the file: {msg}"));
+                    lp.rx.log.note(&format!("cannot read the file: {msg}"));
                     last_error = Some(msg);
                 }
                 quiet = true;
             }
         }
-        if quiet && !lp.caught_up {
-            lp.caught_up = true;
-            lp.log.note(&format!(
+        if quiet && !lp.rx.caught_up {
+            lp.rx.caught_up = true;
+            lp.rx.log.note(&format!(
                 "caught up: {} lines read, following live",
                 lp.pipeline.lines()
             ));
-            if let Some(a) = &lp.held {
-                lp.log.note(&format!(
+            if let Some(a) = &lp.rx.held {
+                lp.rx.log.note(&format!(
                     "a {} alarm at line {} was already in the file: acting only if the run \
                      writes on in that segment",
                     serde_json::to_value(a.level)
@@ -238,22 +227,25 @@ pub fn supervise<S: Source>(
             last_growth,
             pid_alive,
         };
-        for r in lp.escalation.tick(Instant::now(), &activity) {
-            lp.log.action(&r);
+        for r in lp.rx.escalation.tick(Instant::now(), &activity) {
+            lp.rx.log.action(&r);
         }
-        if lp.escalation.finished() {
+        if lp.rx.escalation.finished() {
             break End::Escalated;
         }
         if !quiet {
             continue;
         }
-        if lp.escalation.busy() {
+        if lp.rx.escalation.busy() {
             // A command is running: keep reading, check it often, never exit under it.
             source.wait(max_wait.min(Duration::from_millis(20)));
             continue;
         }
         if pid_alive == Some(false) {
             break End::PidEnded;
+        }
+        if source.ended() {
+            break End::SourceEnded;
         }
         let now = Instant::now();
         let idle_since = last_growth.unwrap_or(started);
@@ -265,13 +257,13 @@ pub fn supervise<S: Source>(
             }
             wait = wait.min(due - now);
         }
-        if let Some(due) = lp.escalation.next_deadline() {
+        if let Some(due) = lp.rx.escalation.next_deadline() {
             wait = wait.min(due.saturating_duration_since(now));
         }
         source.wait(wait);
     };
-    if let Some(a) = &lp.held {
-        lp.log.note(&format!(
+    if let Some(a) = &lp.rx.held {
+        lp.rx.log.note(&format!(
             "the alarm at line {} was in the file before guard started and the run wrote \
              nothing after it: no action taken",
             a.line
@@ -279,9 +271,9 @@ pub fn supervise<S: Source>(
     }
     Summary {
         end,
-        alarms: lp.alarms,
-        acted: lp.escalation.acted(),
-        failed: lp.escalation.any_failed(),
+        alarms: lp.rx.alarms,
+        acted: lp.rx.escalation.acted(),
+        failed: lp.rx.escalation.any_failed(),
         rows: lp.pipeline.rows(),
     }
 }

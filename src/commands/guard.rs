@@ -202,6 +202,7 @@ pub fn run(args: GuardArgs) -> anyhow::Result<i32> {
         End::Escalated => "the escalation is complete",
         End::Idle => "the file stopped growing",
         End::PidEnded => "the watched process ended",
+        End::SourceEnded => "the input ended",
     };
     log.note(&format!(
         "ending ({why}): {} rows, {} alarms, exit {}",

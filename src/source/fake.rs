@@ -55,6 +55,10 @@ impl Source for Scripted {
         }
     }
 
+    fn ended(&self) -> bool {
+        self.steps.is_empty()
+    }
+
     fn wait(&mut self, max: Duration) {
         let d = self.wait_sleep.min(max);
         if !d.is_zero() {

@@ -64,6 +64,12 @@ pub trait Source {
     /// Sleep until something may have changed (a notification, or the poll
     /// period elapsed), for at most `max`.
     fn wait(&mut self, max: Duration);
+
+    /// True when nothing more will ever come (a finished script); a followed
+    /// file never ends by itself.
+    fn ended(&self) -> bool {
+        false
+    }
 }
 
 /// A message from a source thread: the event and when it was read.

@@ -42,6 +42,43 @@ fn a_run_that_crashes_while_writing_is_stopped_and_guard_exits_2() {
 }
 
 #[test]
+fn a_blow_up_written_at_20000_lines_per_s_is_stopped_before_its_crash_line() {
+    let dir = tempfile::tempdir().unwrap();
+    let (input, out, stop) = (
+        dir.path().join("input.csv"),
+        dir.path().join("history.csv"),
+        dir.path().join("STOP"),
+    );
+    // ×1.01 per row: about 70,000 rows from onset to overflow.
+    let (text, crash_line) = blow_up(1.01);
+    fs::write(&input, &text).unwrap();
+    let mut g = Guard::start(
+        dir.path(),
+        &out,
+        &["--touch", stop.to_str().unwrap(), "--idle-exit", "3s"],
+    );
+    let w = Writer::fast(&input, &out, &stop);
+    assert_eq!(g.code(), 2, "{}", g.stderr_text());
+    assert!(w.stopped(), "the writer saw the stop file");
+    let written = line_count(&out);
+    assert!(
+        written < crash_line,
+        "stopped at line {written}, before the crash at line {crash_line}"
+    );
+    assert!(!fs::read_to_string(&out).unwrap().contains("NaN"));
+    let ev = g.events();
+    let first = of_kind(&ev, "alarm")
+        .into_iter()
+        .find(|a| a["level"] == "critical")
+        .cloned()
+        .unwrap();
+    assert_ne!(
+        first["detector"], "nonfinite",
+        "caught by a detector ahead of the crash"
+    );
+}
+
+#[test]
 fn a_healthy_run_is_never_stopped_and_guard_exits_0_when_idle() {
     let dir = tempfile::tempdir().unwrap();
     let (input, out, stop) = (

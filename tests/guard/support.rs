@@ -206,3 +206,32 @@ pub fn eventually(what: &str, mut cond: impl FnMut() -> bool) {
         std::thread::sleep(Duration::from_millis(20));
     }
 }
+
+/// The damped vibration of [`healthy`] plus a sign-alternating parasitic mode
+/// that grows by `rho` per row from 1e-6 — the signature of an explicit
+/// scheme past its step limit (its amplification eigenvalue is real and negative
+/// beyond ωΔt = 2; Belytschko, Liu, Moran, Nonlinear Finite Elements, 2000, §6.3,
+/// from memory) — until it overflows; the last row is the crash (NaN).
+/// Returns the text and the crash row's line number.
+pub fn blow_up(rho: f64) -> (String, usize) {
+    let omega = 2.0 * std::f64::consts::PI * 5.0;
+    let zeta: f64 = 0.02;
+    let wd = omega * (1.0 - zeta * zeta).sqrt();
+    let mut s = String::from(HEADER);
+    let mut line = 1;
+    let mut par: f64 = 1e-6;
+    for i in 0.. {
+        let t = i as f64 * DT_S;
+        line += 1;
+        if par.abs() > 1e300 {
+            s.push_str(&format!("{t:.6},NaN,NaN\n"));
+            break;
+        }
+        let env = (-zeta * omega * t).exp();
+        let x = env * (wd * t).cos() + par;
+        let v = env * (-zeta * omega * (wd * t).cos() - wd * (wd * t).sin()) + 50.0 * par;
+        s.push_str(&format!("{t:.6},{x:.9e},{v:.9e}\n"));
+        par *= -rho;
+    }
+    (s, line)
+}
