@@ -4,6 +4,7 @@
 //! redraws only when something changed and at most at a fixed frame rate.
 
 pub mod batch;
+pub mod feed;
 pub mod run;
 pub mod speed;
 pub mod state;
