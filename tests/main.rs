@@ -10,3 +10,4 @@ mod report_plot;
 mod scan_cli;
 mod ui_dashboard;
 mod ui_support;
+mod ui_tmux;

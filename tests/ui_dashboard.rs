@@ -270,8 +270,10 @@ fn nothing_armed_means_nothing_fired() {
     cfg.actions.clear();
     let mut s = state_with(Kind::Critical, cfg);
     s.update(Msg::Key(Key::Char('X')));
+    assert!(screen(&s, 80, 24).contains("No stop action is armed"));
     assert!(s.update(Msg::Key(Key::Char('y'))).is_empty());
     assert_eq!(s.stop, StopState::Idle);
+    assert_eq!(s.dialog, None);
 }
 
 #[test]

@@ -151,7 +151,10 @@ impl AppState {
         match self.dialog {
             Some(Dialog::ConfirmStop) => {
                 self.dialog = None;
-                if matches!(k, Key::Char('y') | Key::Char('Y')) {
+                let asked = !self.config.actions.is_empty() && self.stop == StopState::Idle;
+                if !asked {
+                    // The dialog only said there is nothing to do.
+                } else if matches!(k, Key::Char('y') | Key::Char('Y')) {
                     self.request_stop(fx);
                 } else {
                     self.push_event(Event {

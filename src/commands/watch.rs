@@ -1,8 +1,244 @@
-//! `rhoscope watch`: wiring only.
+//! `rhoscope watch`: wiring only. Loads the settings and the armed actions,
+//! enters the terminal, starts the threads (keys, signals, ticks, file data)
+//! feeding one channel, runs the dashboard loop, restores the terminal and
+//! prints a one-line summary.
 
+use std::path::Path;
+use std::sync::mpsc::sync_channel;
+use std::sync::{Arc, Mutex};
+use std::time::{Duration, Instant};
+
+use anyhow::{Context, bail};
+
+use crate::act::{ActionSpec, Activity, Escalation, EscalationConfig, EventLog, ProcessId};
+use crate::alarm::{Alarm, Level};
+use crate::app::feed::Feed;
+use crate::app::run::{Pacing, StopActions, Ticker};
+use crate::app::{AppState, Config, StopState};
 use crate::cli::watch::WatchArgs;
+use crate::commands::guard::escalation_from_args;
+use crate::settings::Settings;
+use crate::source::{FollowConfig, Follower};
+use crate::tui;
+
+/// Exit code when a stop action failed (as `guard`).
+const EXIT_ACTION_FAILED: i32 = 4;
+
+/// Plain sentences for the confirmation dialog: exactly what will be done.
+pub fn describe_actions(cfg: &EscalationConfig) -> Vec<String> {
+    let grace = crate::ui::format::duration(Some(cfg.grace.as_secs_f64()));
+    let dry = if cfg.dry_run {
+        "[dry run: only logged] "
+    } else {
+        ""
+    };
+    cfg.actions
+        .iter()
+        .enumerate()
+        .map(|(i, a)| {
+            let what = match a {
+                ActionSpec::Touch(p) => format!(
+                    "create the stop file {} (a solver that polls for it writes a restart and ends)",
+                    p.display()
+                ),
+                ActionSpec::Signal { signal, target } => format!(
+                    "send {signal} to process {} (checked first to be the same process)",
+                    target.pid
+                ),
+                ActionSpec::Run {
+                    command,
+                    time_limit,
+                } => format!(
+                    "run `{command}` (killed after {})",
+                    crate::ui::format::duration(Some(time_limit.as_secs_f64()))
+                ),
+            };
+            if i == 0 {
+                format!("{dry}{what}")
+            } else {
+                format!("{dry}then, if the run still writes {grace} later: {what}")
+            }
+        })
+        .collect()
+}
+
+/// The armed escalation, driven by the dashboard loop.
+struct Armed {
+    escalation: Escalation,
+    pid: Option<ProcessId>,
+    log: Arc<Mutex<EventLog>>,
+}
+
+impl Armed {
+    fn lines(&mut self, reports: Vec<crate::act::ActionReport>) -> Option<(bool, Vec<String>)> {
+        if reports.is_empty() {
+            return None;
+        }
+        let mut ok = true;
+        let mut lines = Vec::new();
+        for r in &reports {
+            if let Ok(mut log) = self.log.lock() {
+                log.action(r);
+            }
+            ok &= !r.outcome.failed();
+            lines.push(format!(
+                "step {} {}: {} ({})",
+                r.index + 1,
+                r.action,
+                r.outcome.word(),
+                r.outcome.detail()
+            ));
+        }
+        Some((ok, lines))
+    }
+}
+
+impl StopActions for Armed {
+    fn on_alarm(&mut self, alarm: &Alarm, now: Instant) -> Option<(bool, Vec<String>)> {
+        let r = self.escalation.on_alarm(alarm, now);
+        self.lines(r)
+    }
+
+    fn tick(&mut self, now: Instant, last_data: Option<Instant>) -> Option<(bool, Vec<String>)> {
+        let activity = Activity {
+            last_growth: last_data,
+            pid_alive: self.pid.as_ref().map(|p| p.alive()),
+        };
+        let r = self.escalation.tick(now, &activity);
+        self.lines(r)
+    }
+}
+
+/// True when colours may be used (`NO_COLOR` unset or empty).
+pub fn colour_allowed() -> bool {
+    std::env::var_os("NO_COLOR").is_none_or(|v| v.is_empty())
+}
 
 /// Run `rhoscope watch`; returns the exit code.
-pub fn run(_args: WatchArgs) -> anyhow::Result<i32> {
-    anyhow::bail!("'watch' is not built yet")
+pub fn run(args: WatchArgs) -> anyhow::Result<i32> {
+    tui::install_panic_hook();
+    if args.file.is_dir() {
+        bail!(
+            "'{}' is a directory, not a history file",
+            args.file.display()
+        );
+    }
+    if let Some(t) = args.end_time
+        && !(t.is_finite() && t > 0.0)
+    {
+        bail!("--end-time '{t}' must be a positive number of seconds");
+    }
+    let settings = Settings::load(&args.input, &args.file)?;
+    let (cfg, pid) = escalation_from_args(&args.actions, settings.actions.as_ref(), &args.file)?;
+    let log = EventLog::open(args.events.as_deref(), false)
+        .with_context(|| "cannot open the event log".to_string())?;
+    watch(args, settings, cfg, pid, log)
+}
+
+fn watch(
+    args: WatchArgs,
+    settings: Settings,
+    cfg: EscalationConfig,
+    pid: Option<ProcessId>,
+    log: EventLog,
+) -> anyhow::Result<i32> {
+    let escalation = Escalation::new(cfg.clone());
+    let start_notes: Vec<String> = settings
+        .notes
+        .iter()
+        .cloned()
+        .chain(escalation.warnings_at_start())
+        .collect();
+    let log = Arc::new(Mutex::new(log));
+    let mut armed = Armed {
+        escalation,
+        pid,
+        log: Arc::clone(&log),
+    };
+    let t0 = Instant::now();
+    let mut state = AppState::new(Config {
+        file: args.file.display().to_string(),
+        color: colour_allowed(),
+        end_time_s: args.end_time,
+        wall_left_at_start: args.wall_limit,
+        started_s: 0.0,
+        actions: describe_actions(&cfg),
+        auto_stop: !args.by_key_only,
+        retention_rows: args.retention_rows,
+    });
+    if !Path::new(&args.file).exists() {
+        state.note = Some("waiting for the file to appear".into());
+    }
+    for n in start_notes {
+        state.push_event(crate::app::Event {
+            level: Level::Warning,
+            source: "start".into(),
+            line: None,
+            time: None,
+            text: n,
+        });
+    }
+
+    let (tx, rx) = sync_channel(256);
+    let mut session = tui::enter().context("cannot set up the terminal")?;
+    let signals = tui::spawn_signals(tx.clone()).context("cannot listen for signals")?;
+    let input = tui::Input::spawn(tx.clone());
+    let ticker = Ticker::spawn(tx.clone(), t0, Duration::from_secs(1));
+    let follower = Follower::new(
+        args.file.clone(),
+        FollowConfig {
+            poll_interval: args.poll,
+            notify: !args.no_notify,
+            ..FollowConfig::default()
+        },
+    );
+    let alarm_log = Arc::clone(&log);
+    let feed = Feed::spawn(
+        follower,
+        settings,
+        tx,
+        t0,
+        args.poll.min(Duration::from_millis(500)),
+        Box::new(move |a| {
+            if let Ok(mut l) = alarm_log.lock() {
+                l.alarm(a);
+            }
+        }),
+    );
+    let pacing = Pacing {
+        frame_interval: Duration::from_secs_f64(1.0 / f64::from(args.fps)),
+    };
+    let result = crate::app::run::run(&mut session.terminal, &mut state, &rx, &mut armed, pacing);
+    drop(session);
+    drop(rx);
+    signals.close();
+    input.stop();
+    ticker.stop();
+    feed.stop();
+    result.context("cannot draw on the terminal")?;
+
+    let stop = match &state.stop {
+        StopState::Idle => "no stop action taken".to_string(),
+        StopState::Requested { .. } => "stop actions started".to_string(),
+        StopState::Done { ok, report } => format!(
+            "stop actions {}: {}",
+            if *ok { "taken" } else { "FAILED" },
+            report.join("; ")
+        ),
+    };
+    println!(
+        "rhoscope watch: {} rows of {}; state {}; {stop}",
+        state.rows,
+        args.file.display(),
+        crate::ui::theme::state_word(state.level)
+    );
+    if let Some(n) = &state.note {
+        println!("rhoscope watch: {n}");
+    }
+    Ok(match (&state.stop, state.level) {
+        (StopState::Done { ok: false, .. }, _) => EXIT_ACTION_FAILED,
+        (_, Level::Ok) => 0,
+        (_, Level::Warning) => 1,
+        (_, Level::Critical) => 2,
+    })
 }
