@@ -332,3 +332,14 @@ fn unknown_keys_do_not_mark_the_screen_dirty() {
     s.update(Msg::Resize);
     assert!(s.dirty);
 }
+
+#[test]
+fn a_run_that_stopped_writing_is_called_out() {
+    let mut s = state(Kind::Healthy);
+    assert!(!screen(&s, 80, 24).contains("no new rows"));
+    let last = s.last_row_s.unwrap();
+    s.update(Msg::Tick {
+        now_s: last + 125.0,
+    });
+    assert!(screen(&s, 200, 60).contains("no new rows for 2m 05s"));
+}

@@ -80,6 +80,8 @@ pub struct View {
 
 /// Deepest zoom: 4⁻⁶ of the run.
 pub const MAX_ZOOM: u8 = 6;
+/// Seconds without new rows before the header says so.
+pub const QUIET_S: f64 = 5.0;
 /// Events kept in the list.
 pub const MAX_EVENTS: usize = 500;
 
@@ -103,6 +105,8 @@ pub struct AppState {
     pub skipped: u64,
     pub segments: u32,
     pub last_line: u64,
+    /// Monotonic seconds when the last data row arrived.
+    pub last_row_s: Option<f64>,
     pub events: VecDeque<Event>,
     /// Worst level raised in the current segment.
     pub level: Level,
@@ -154,6 +158,7 @@ impl AppState {
             skipped: 0,
             segments: 0,
             last_line: 0,
+            last_row_s: None,
             events: VecDeque::new(),
             level: Level::Ok,
             banner: None,
@@ -262,6 +267,12 @@ impl AppState {
     /// Whether the run will reach its end time before its wall limit.
     pub fn finishes_in_time(&self) -> Option<bool> {
         Some(self.time_to_finish_s()? <= self.wall_left_s()?)
+    }
+
+    /// Seconds since the last row arrived, when that is long enough to say.
+    pub fn quiet_for_s(&self) -> Option<f64> {
+        let q = self.now_s - self.last_row_s?;
+        (q >= QUIET_S).then_some(q)
     }
 
     /// Record an event (bounded list, newest last).

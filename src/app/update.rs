@@ -350,8 +350,16 @@ impl AppState {
                 );
             }
         }
+        let had_rows = b.items.iter().any(|i| matches!(i, Item::Row { .. }));
+        if had_rows {
+            // Rows are flowing: a note about finding or waiting for the file is stale.
+            self.note = None;
+        }
         if let Some(w) = b.arrival_s {
             self.now_s = self.now_s.max(w);
+            if had_rows {
+                self.last_row_s = Some(w);
+            }
             let step_col = self.col(Role::StepNumber);
             let steps = step_col.and_then(|c| self.table.last(c));
             let (count, rows) = match steps {

@@ -143,11 +143,14 @@ pub fn readouts(f: &mut Frame, area: Rect, s: &AppState, t: &Theme) {
         } else {
             "growth per step"
         },
-        format!(
-            "ρ {} {}",
-            num(e.growth_per_step, 5),
-            symbol(growth_level(e.growth_per_step))
-        ),
+        match e.growth_per_step {
+            Some(_) => format!(
+                "ρ {} {}",
+                num(e.growth_per_step, 5),
+                symbol(growth_level(e.growth_per_step))
+            ),
+            None => "— (no estimate yet)".to_string(),
+        },
         growth_level(e.growth_per_step),
     ));
     let efold = e

@@ -137,6 +137,12 @@ pub fn render(f: &mut Frame, area: Rect, s: &AppState, t: &Theme) {
         )),
         None => {}
     }
+    if let Some(q) = s.quiet_for_s() {
+        l2.push(Span::styled(
+            format!("  no new rows for {}", duration(Some(q))),
+            t.level(Level::Warning),
+        ));
+    }
     if let Some(note) = &s.note {
         l2.push(Span::styled(format!("  {note}"), t.dim()));
     }
