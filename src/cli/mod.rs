@@ -31,7 +31,7 @@ pub enum Command {
     Limits(Box<limits::LimitsArgs>),
     /// Follow a growing history headless and act on a critical alarm.
     Guard(guard::GuardArgs),
-    /// Live dashboard of one or several running histories.
+    /// Live dashboard of a running history, with the guard's actions armed if asked.
     Watch(watch::WatchArgs),
     /// Run an invented simulation that goes unstable, watched and stopped.
     Demo(demo::DemoArgs),
