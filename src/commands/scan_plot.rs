@@ -36,6 +36,19 @@ pub fn scan_and_draw(
     progress: bool,
     (image, format): (PathBuf, ImageFormat),
 ) -> anyhow::Result<ScanReport> {
+    let (report, bytes) = scan_and_render(file, settings, progress, format)?;
+    write_replacing(&image, &bytes)?;
+    eprintln!("rhoscope: report image written to {}", image.display());
+    Ok(report)
+}
+
+/// Scan `file` in one pass and draw its report image in `format`.
+pub fn scan_and_render(
+    file: &Path,
+    settings: &Settings,
+    progress: bool,
+    format: ImageFormat,
+) -> anyhow::Result<(ScanReport, Vec<u8>)> {
     let size = std::fs::metadata(file).map(|m| m.len()).unwrap_or(0);
     let slice = (size / STATUS_SAMPLES).clamp(SLICE_BYTES.0, SLICE_BYTES.1) as usize;
     let mut collector = PlotCollector::new();
@@ -59,9 +72,7 @@ pub fn scan_and_draw(
     ];
     let data = collector.finish(&report.file, verdict, figures);
     let bytes = render(&data, format)?;
-    write_replacing(&image, &bytes)?;
-    eprintln!("rhoscope: report image written to {}", image.display());
-    Ok(report)
+    Ok((report, bytes))
 }
 
 /// Write `bytes` to `path` through a temporary file in the same directory and
