@@ -198,3 +198,23 @@ fn config_beside_history_and_unknown_keys() {
         .assert()
         .code(0);
 }
+
+#[test]
+fn non_fatal_bad_lines_are_counted_with_their_lines() {
+    let mut text = b"time [s],disp [\xb5m]\n0,1\n1,2,3\n".to_vec();
+    text.extend(std::iter::repeat_n(b'7', (1 << 20) + 10));
+    text.extend(b"\n2,3\n");
+    let (r, code) = scan_json(&text);
+    assert_eq!(code, 0);
+    assert_eq!(r.rows, 2);
+    assert_eq!(r.skipped_rows, 2);
+    let lines: Vec<u64> = r.skipped.iter().map(|s| s.line).collect();
+    assert_eq!(lines, [1, 3, 4]);
+    assert_eq!(r.columns[1].unit.as_deref(), Some("\u{b5}m"));
+}
+
+#[test]
+fn cli_definition_is_consistent() {
+    use clap::CommandFactory;
+    rhoscope::cli::Cli::command().debug_assert();
+}
