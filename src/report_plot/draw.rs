@@ -258,7 +258,7 @@ fn page<DB: DrawingBackend>(
         },
         Panel {
             caption: "Probes",
-            y_desc: axis_desc("value", None, p_scale),
+            y_desc: axis_desc("value", common_unit(&data.probes), p_scale),
             series: probes,
             scale: p_scale,
             guides: vec![],
@@ -270,6 +270,15 @@ fn page<DB: DrawingBackend>(
         draw_panel(area, panel, xr, &data.x_label, &data.markers)?;
     }
     Ok(())
+}
+
+/// The unit all `series` share, if they do.
+fn common_unit(series: &[Series]) -> Option<&str> {
+    let first = series.first()?.unit.as_deref()?;
+    series
+        .iter()
+        .all(|s| s.unit.as_deref() == Some(first))
+        .then_some(first)
 }
 
 fn axis_desc(what: &str, unit: Option<&str>, scale: Scale) -> String {
