@@ -1,6 +1,7 @@
 //! The integration-test crate: one binary, one module per area.
 #![allow(clippy::unwrap_used)]
 
+mod demo_sim;
 mod detect_checks;
 mod guard;
 mod limits_cli;
