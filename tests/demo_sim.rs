@@ -289,11 +289,16 @@ fn catalogue_is_large_varied_and_honestly_labelled() {
 #[test]
 fn written_files_are_deterministic_and_crash_where_labelled() {
     for c in catalogue() {
+        // Written once here, once when the catalogue labelled it: same bytes.
         let mut a = Vec::new();
-        let mut b = Vec::new();
         c.write(&mut a).unwrap();
-        c.write(&mut b).unwrap();
-        assert_eq!(a, b, "{} is not deterministic", c.name);
+        let h = rhoscope::demo::run::fnv1a(rhoscope::demo::run::FNV_OFFSET, &a);
+        assert_eq!(
+            h,
+            c.summarize().bytes_hash,
+            "{} is not deterministic",
+            c.name
+        );
         // A few hundred KB at most.
         assert!(a.len() < 600_000, "{}: {} bytes", c.name, a.len());
         let text = String::from_utf8(a).unwrap();

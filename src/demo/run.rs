@@ -152,7 +152,23 @@ pub struct Summary {
     pub drift_line: Option<u64>,
     /// Smallest step over the first step.
     pub min_dt_ratio: f64,
+    /// FNV-1a hash of the written bytes (lines with their newlines), for
+    /// checking that a rewrite gives the same file.
+    pub bytes_hash: u64,
 }
+
+/// FNV-1a over `bytes`, continuing from `h` (Fowler, Noll & Vo; offset basis
+/// 0xcbf29ce484222325, prime 0x100000001b3).
+pub fn fnv1a(mut h: u64, bytes: &[u8]) -> u64 {
+    for b in bytes {
+        h ^= u64::from(*b);
+        h = h.wrapping_mul(0x0100_0000_01b3);
+    }
+    h
+}
+
+/// FNV-1a offset basis.
+pub const FNV_OFFSET: u64 = 0xcbf2_9ce4_8422_2325;
 
 #[derive(Debug, Clone)]
 struct Books {
@@ -332,8 +348,13 @@ impl Run {
 
     /// Run to the end without keeping the text, and report what happened.
     pub fn summarize(mut self) -> Summary {
-        while self.next_line().is_some() {}
-        self.finish_summary()
+        let mut h = FNV_OFFSET;
+        while let Some(l) = self.next_line() {
+            h = fnv1a(fnv1a(h, l.as_bytes()), b"\n");
+        }
+        let mut s = self.finish_summary();
+        s.bytes_hash = h;
+        s
     }
 
     fn finish_summary(mut self) -> Summary {
