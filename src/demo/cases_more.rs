@@ -266,7 +266,7 @@ fn bridge_ramp_hht() -> Setup {
         dof: dy,
         amp_n: -2.0e5,
         shape: Shape::Ramp {
-            rise_s: 20.0 * period,
+            rise_s: 15.0 * period,
         },
     });
     let mut s = setup(
@@ -276,7 +276,7 @@ fn bridge_ramp_hht() -> Setup {
         StepRule::Fixed {
             dt_s: period / 40.0,
         },
-        40.0 * period,
+        25.0 * period,
     );
     s.layout = Layout::Spaced;
     s.probes = vec![
@@ -392,9 +392,9 @@ fn mast_rk4() -> Setup {
         t.model.clone(),
         Scheme::Rk4,
         StepRule::Fixed { dt_s: 0.3 / w0 },
-        12.0 * 2.0 * std::f64::consts::PI / ms[0].0,
+        6.0 * 2.0 * std::f64::consts::PI / ms[0].0,
     );
-    s.every = 10;
+    s.every = 5;
     s.layout = Layout::Spaced;
     s.probes = vec![
         disp(top, "ux_top", "top sway"),

@@ -75,9 +75,6 @@ impl Scenario {
     }
 }
 
-/// A case to label: declared level and builder.
-type Pending = (Level, fn() -> Setup);
-
 /// Label from a declared level and the run's own summary.
 fn label(level: Level, s: &Summary) -> Expected {
     let onset_line = match level {
@@ -96,32 +93,19 @@ fn label(level: Level, s: &Summary) -> Expected {
 }
 
 /// All labelled cases, in a fixed order. The labels are computed once per
-/// process by running every case (a second or so).
+/// process by running every case (a few seconds unoptimised).
 pub fn catalogue() -> Vec<Scenario> {
     static LABELS: OnceLock<Vec<(Expected, Summary)>> = OnceLock::new();
     let specs = cases::specs();
     let labels = LABELS.get_or_init(|| {
-        let runs: Vec<Pending> = specs.iter().map(|c| (c.level, c.build)).collect();
-        // Two threads: the cases take a few seconds in an unoptimised build.
-        let half = runs.len() / 2;
-        let (a, b) = runs.split_at(half);
-        let label_all = |rs: &[Pending]| -> Vec<(Expected, Summary)> {
-            rs.iter()
-                .map(|(lv, b)| {
-                    let s = Run::new(b()).summarize();
-                    (label(*lv, &s), s)
-                })
-                .collect()
-        };
-        std::thread::scope(|sc| {
-            let h = sc.spawn(|| label_all(b));
-            let mut first = label_all(a);
-            match h.join() {
-                Ok(second) => first.extend(second),
-                Err(_) => first.extend(label_all(b)),
-            }
-            first
-        })
+        // One thread: tests of other parts that measure timing share the machine.
+        specs
+            .iter()
+            .map(|c| {
+                let s = Run::new((c.build)()).summarize();
+                (label(c.level, &s), s)
+            })
+            .collect()
     });
     specs
         .into_iter()
