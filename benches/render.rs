@@ -122,5 +122,10 @@ fn frames(c: &mut Criterion) {
     });
 }
 
-criterion_group!(benches, frames);
+criterion_group! {
+    name = benches;
+    // No plots: the machine may have no fonts for them, and the figures are what matter.
+    config = Criterion::default().without_plots();
+    targets = frames
+}
 criterion_main!(benches);
