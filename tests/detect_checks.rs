@@ -111,20 +111,25 @@ fn buried_central_difference_mode_found_at_print_precision() {
     let seed = 1e-12;
     let rows = buried_mode_rows(omega, seed, 1, 20_000);
     let (schema, roles) = cd_layout();
-    let (alarms, _) = run(&schema, &roles, &rows);
+    let (alarms, status) = run(&schema, &roles, &rows);
     let crit = alarms
         .iter()
         .find(|a| a.level == Level::Critical)
         .expect("critical alarm");
     assert_eq!(crit.detector, "growth");
+    // Once the mode stands well above the print floor the estimate is sharp
+    // (tolerance: 6-digit data, 200-row fit).
+    let g = status.evidence.growth_per_step.unwrap_or(0.0);
+    assert!((g - rho).abs() < 1e-4, "final growth per step {g} vs {rho}");
     let step = (crit.line - 1) as f64;
     let mode = seed * rho.powf(step);
     // Printed to 6 digits the mode becomes readable near 1e-5; the alarm must
     // come before it has grown two decades past that.
     assert!(mode < 1e-3, "alarm at step {step}, mode amplitude {mode:e}");
     let g = crit.evidence.growth_per_step.unwrap_or(0.0);
-    // Tolerance: noise of 6-digit printing on a 200-row fit.
-    assert!((g - rho).abs() < 2e-3, "growth per step {g} vs {rho}");
+    // Tolerance: at the first alarm the mode is within two decades of the
+    // print floor, so its estimate carries that noise.
+    assert!((g - rho).abs() < 5e-3, "growth per step {g} vs {rho}");
     // Onset: the mode crossed print resolution (~1e-5) near this step.
     let visible = (1e-5_f64 / seed).ln() / rho.ln();
     let onset = crit.evidence.onset_line.unwrap_or(0) as f64 - 1.0;

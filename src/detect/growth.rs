@@ -25,20 +25,20 @@ use crate::parse::roles::{Role, RoleMap};
 
 /// Window length in outputs (≥ 3× model order; 200 samples suit ranks 3–6).
 pub const WINDOW_ROWS: usize = 200;
+/// Rows of the short window tried when the long one fits badly.
+const SHORT_ROWS: usize = 4 * modes::EMBED_DIM;
+/// Relative one-step misfit of the long window above which the short one is tried.
+const SHORT_FIT_MISFIT: f64 = 1e-3;
 /// Fewest rows for a first fit.
-const MIN_ROWS: usize = 64;
+const MIN_ROWS: usize = 3 * modes::EMBED_DIM;
 /// Rows between fits before the first model exists.
-const EMPTY_STRIDE: usize = 16;
+const EMPTY_STRIDE: usize = 8;
 /// Rows between fits while a growing mode is being followed.
 const FOLLOW_STRIDE: usize = 8;
 /// Refit when the RMS one-step misfit exceeds this multiple of the fit's own.
 const TRIGGER_RATIO: f64 = 4.0;
 /// Weight of the newest row in the misfit average.
 const MISFIT_WEIGHT: f64 = 0.125;
-/// Energy created beyond this fraction of the energy scale confirms that a
-/// growing mode is numerical (the textbook balance tolerance, ~1 %:
-/// Belytschko, Liu & Moran 2000, §6.2.3, from memory).
-const ENERGY_CONFIRM: f64 = 0.01;
 /// Fits without a growing mode before a raised critical clears.
 const QUIET_FITS_TO_CLEAR: u32 = 3;
 
@@ -86,11 +86,17 @@ pub struct Growth {
     cols: Vec<usize>,
     data: Vec<f64>,
     lines: Vec<u64>,
+    /// Relative balance error at each row of the window (NaN before it is judged).
+    balances: Vec<f64>,
     count: usize,
     clock: Clock,
     balance: Option<EnergyBalance>,
     balance_rel: Option<f64>,
     bound: f64,
+    /// Energy created beyond this fraction of the energy scale confirms that a
+    /// growing mode is numerical: the balance warning threshold, since single
+    /// contact events in healthy explicit runs create a few per cent.
+    energy_confirm: f64,
     model: Option<Model>,
     since_fit: usize,
     min_gap: usize,
@@ -100,6 +106,8 @@ pub struct Growth {
     first_line: Option<u64>,
     evidence: Evidence,
     scratch: Vec<f64>,
+    /// Latest raw values of the fitted columns.
+    prev: Vec<f64>,
 }
 
 impl Growth {
@@ -119,12 +127,14 @@ impl Growth {
         Self {
             data: vec![0.0; WINDOW_ROWS * m],
             lines: vec![0; WINDOW_ROWS],
+            balances: vec![f64::NAN; WINDOW_ROWS],
             cols,
             count: 0,
             clock: Clock::new(roles),
             balance: EnergyBalance::new(roles),
             balance_rel: None,
             bound: settings.overflow_bound,
+            energy_confirm: settings.balance_warning,
             model: None,
             since_fit: 0,
             min_gap: FOLLOW_STRIDE,
@@ -134,6 +144,7 @@ impl Growth {
             first_line: None,
             evidence: Evidence::default(),
             scratch: Vec::new(),
+            prev: vec![0.0; m],
         }
     }
 
@@ -158,7 +169,18 @@ impl Growth {
         let Some(analysis) = modes::analyse(&self.scratch, n, m) else {
             return;
         };
-        let growing = analysis.growing;
+        let mut growing = analysis.growing.map(|g| (g, n));
+        let candidate = analysis.spectral_radius.ln() * n as f64 > modes::MIN_WINDOW_GROWTH.ln();
+        // Contact, yielding and other changes of regime make a long window
+        // non-linear; a short recent window is still nearly linear.
+        if growing.is_none()
+            && n > SHORT_ROWS
+            && analysis.misfit_rms > SHORT_FIT_MISFIT * analysis.signal_rms
+        {
+            growing = modes::analyse(&self.scratch[(n - SHORT_ROWS) * m..], SHORT_ROWS, m)
+                .and_then(|a| a.growing)
+                .map(|g| (g, SHORT_ROWS));
+        }
         // Seed the predictor with the newest snapshot of the window.
         let (q, d) = (analysis.map.q, analysis.map.d);
         let mut snap = vec![0.0; q * d];
@@ -181,9 +203,11 @@ impl Growth {
             analysis,
         });
         match growing {
-            Some(g) => self.judge(g, line, n, out),
+            Some((g, n)) => self.judge(g, line, n, out),
             None => {
-                self.following = false;
+                // An eigenvalue that claims growth but failed its checks is
+                // looked at again soon: it may be a mode still near the noise.
+                self.following = candidate;
 
                 self.evidence = Evidence::default();
                 self.quiet_fits += 1;
@@ -235,11 +259,7 @@ impl Growth {
             ev.onset_time = Some(t - rows_back * tpr);
         }
         // Forecast from the mode's present raw magnitude.
-        let m = self.cols.len();
-        let lp = last % WINDOW_ROWS;
-        let raw = self.data[lp * m..(lp + 1) * m]
-            .iter()
-            .fold(0.0_f64, |a, v| a.max(v.abs()));
+        let raw = self.prev.iter().fold(0.0_f64, |a, v| a.max(v.abs()));
         forecast::fill(
             &mut ev,
             (g.share * raw).max(f64::MIN_POSITIVE),
@@ -249,7 +269,14 @@ impl Growth {
         );
         let sign_alternating = phase >= 0.75 * std::f64::consts::PI;
         let above_quarter = k < 1.5 && phase >= 0.5 * std::f64::consts::PI;
-        let created = self.balance_rel.is_some_and(|r| r > ENERGY_CONFIRM);
+        // Energy created while the mode grew: the balance error rose by the
+        // confirmation threshold over the fitted window (a constant offset, such
+        // as an initial penetration, does not count).
+        let before = self.balances[first % WINDOW_ROWS];
+        let before = if before.is_finite() { before } else { 0.0 };
+        let created = self
+            .balance_rel
+            .is_some_and(|r| r > self.energy_confirm && r - before > self.energy_confirm);
         let numerical = sign_alternating || above_quarter || created;
         self.evidence = ev.clone();
         if numerical && self.level < Level::Critical {
@@ -323,8 +350,10 @@ impl Detector for Growth {
                 return;
             }
             self.data[p * m + k] = v;
+            self.prev[k] = v;
         }
         self.lines[p] = sample.line;
+        self.balances[p] = self.balance_rel.unwrap_or(f64::NAN);
         self.count += 1;
         self.since_fit += 1;
         let row = &self.data[p * m..(p + 1) * m];

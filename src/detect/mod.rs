@@ -11,6 +11,7 @@ pub mod forecast;
 pub mod growth;
 pub mod modes;
 pub mod nonfinite;
+pub mod score;
 pub mod step;
 
 use crate::alarm::Level;

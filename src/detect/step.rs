@@ -12,13 +12,18 @@ use crate::parse::roles::{Role, RoleMap};
 
 /// Rows of recent history kept for trends.
 const TREND_ROWS: usize = 16;
-/// Step below this fraction of its running peak, and still falling: warning.
+/// Step below this fraction of its running peak (two orders of magnitude): warning.
 const WARN_DROP: f64 = 1e-2;
 /// Step below this fraction of its running peak, and still falling: critical
 /// (three orders of magnitude: the run is grinding to a halt).
 const CRITICAL_DROP: f64 = 1e-3;
 /// "Still falling": the step is below this fraction of its value `TREND_ROWS` ago.
 const FALLING: f64 = 0.5;
+/// Rows the step must stay under `WARN_DROP` of its peak before a warning.
+const PERSIST_ROWS: usize = 3;
+/// Rows under `WARN_DROP` of the peak, without recovering, that mean the run
+/// has stalled: critical.
+const STALL_ROWS: usize = TREND_ROWS;
 /// A raised step alarm clears once the step is back above this fraction of its peak.
 const RECOVERED: f64 = 0.1;
 /// Residual growth over the trend window that reads as divergence.
@@ -50,6 +55,7 @@ pub struct StepSize {
     level: Level,
     implicit_level: Level,
     last_dt: Option<f64>,
+    below: usize,
 }
 
 impl StepSize {
@@ -76,6 +82,7 @@ impl StepSize {
             level: Level::Ok,
             implicit_level: Level::Ok,
             last_dt: None,
+            below: 0,
         }
     }
 
@@ -196,10 +203,13 @@ impl Detector for StepSize {
         self.dts[slot] = dt;
         self.peak = self.peak.max(dt);
         let ratio = dt / self.peak;
-        let falling = old.is_finite() && dt < FALLING * old;
-        let level = if falling && ratio < CRITICAL_DROP {
+        self.below = if ratio < WARN_DROP { self.below + 1 } else { 0 };
+        let recovering = old.is_finite() && dt > old;
+        let halving = old.is_finite() && dt < FALLING * old;
+        let stalled = self.below >= STALL_ROWS && !recovering;
+        let level = if (ratio < CRITICAL_DROP && halving) || stalled {
             Level::Critical
-        } else if falling && ratio < WARN_DROP {
+        } else if self.below >= PERSIST_ROWS {
             Level::Warning
         } else if ratio > RECOVERED {
             Level::Ok
