@@ -10,5 +10,6 @@ mod parse_props;
 mod report_plot;
 mod scan_cli;
 mod ui_dashboard;
+mod ui_demo;
 mod ui_support;
 mod ui_tmux;

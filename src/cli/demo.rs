@@ -7,8 +7,10 @@ use clap::{ArgGroup, Args};
 /// Arguments of `rhoscope demo`: the invented simulations and labelled cases.
 #[derive(Debug, Args)]
 #[command(
-    group(ArgGroup::new("mode").args(["list", "write", "write_all", "live"]).multiple(false)),
+    group(ArgGroup::new("mode").args(["list", "write", "write_all", "live", "headless"]).multiple(false)),
     after_help = "Examples:
+  rhoscope demo                # the demo run going unstable, on the dashboard, stopped by the guard
+  rhoscope demo --headless     # the same without a dashboard: the guard's event lines
   rhoscope demo --list
   rhoscope demo --write chain-stop-cd /tmp/chain.csv
   rhoscope demo --write-all /tmp/cases
@@ -16,9 +18,17 @@ use clap::{ArgGroup, Args};
 
 Every case is a real simulation of an invented structure (spring chains, trusses)
 with a real integrator; its label (ok, warning, critical), onset line and crash
-line come from the simulation itself."
+line come from the simulation itself. Without a mode, `rhoscope demo` writes the
+demo scenario live into a new folder under the temporary directory, opens the
+dashboard on it with the guard armed to create the stop file the demo solver
+honours, and keeps the files there afterwards."
 )]
 pub struct DemoArgs {
+    /// Run the live demo without the dashboard: print the guard's event lines
+    /// and exit once the demo run has stopped (for scripts and CI).
+    #[arg(long)]
+    pub headless: bool,
+
     /// List the labelled cases: name, expected level, onset and crash lines, description.
     #[arg(long)]
     pub list: bool,

@@ -8,7 +8,6 @@ use anyhow::{Context, bail};
 
 use crate::alarm::Level;
 use crate::cli::demo::DemoArgs;
-use crate::commands::EXIT_UNKNOWN;
 use crate::demo::live::{LiveEnd, LiveOptions, write_live};
 use crate::demo::{DEMO_SCENARIO, Scenario, catalogue, find};
 
@@ -47,10 +46,7 @@ pub fn run(args: DemoArgs) -> anyhow::Result<i32> {
         }
         return Ok(0);
     }
-    eprintln!(
-        "rhoscope demo: choose --list, --write SCENARIO FILE, --write-all DIR or --live FILE (see --help)"
-    );
-    Ok(EXIT_UNKNOWN)
+    super::demo_dashboard::run(args.headless)
 }
 
 fn scenario(name: &str) -> anyhow::Result<Scenario> {

@@ -2,6 +2,7 @@
 
 pub mod columns;
 pub mod demo;
+pub mod demo_dashboard;
 pub mod guard;
 pub mod limits;
 pub mod scan;
