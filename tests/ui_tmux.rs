@@ -181,7 +181,10 @@ fn stop_by_hand_needs_yes_and_creates_the_stop_file_once_at_200x60() {
     assert!(s.contains("stop: armed (1, by key)"), "{s}");
 
     tm.keys(&["X"]);
-    let s = tm.wait_for("confirmation", |s| s.contains("Stop the run? This will"));
+    // Wait for the whole dialog: a capture can fall in the middle of a frame.
+    let s = tm.wait_for("confirmation", |s| {
+        s.contains("Stop the run? This will") && s.contains("nothing is done")
+    });
     assert!(s.contains(&stop.display().to_string()), "{s}");
     assert!(s.contains("An alarm is advice"), "{s}");
     assert!(s.contains("last checkpoint"), "{s}");
