@@ -255,3 +255,11 @@ fn fixed_width_fortran_table() {
     assert!(is_field_overflow(ev.rows[4].1[3]));
     assert_eq!(ev.rows[4].0, 8);
 }
+
+#[test]
+fn decimal_commas_with_semicolons() {
+    let ev = read(b"Zeit [s];kinetische Energie [J]\n0,0;1,5\n0,001;1,25E-03\n");
+    assert_eq!(ev.rows.len(), 2);
+    assert!(close(ev.rows[1].1[0], 0.001));
+    assert!(close(ev.rows[1].1[1], 1.25e-3));
+}

@@ -51,12 +51,14 @@ pub fn parse_slow(field: &[u8]) -> Option<f64> {
     if let Some(v) = non_finite_word(field) {
         return Some(v);
     }
-    // Rewrite into a buffer the fast parser accepts: D/d/Q/q exponent → E, and an
-    // exponent sign directly after a mantissa digit or point → E±.
+    // Rewrite into a buffer the fast parser accepts: D/d/Q/q exponent → E, an
+    // exponent sign directly after a mantissa digit or point → E±, and a decimal
+    // comma → point (a field holding a comma was not split on commas).
     let mut buf = [0u8; 72];
     let mut n = 0;
     let mut seen_digit = false;
     let mut seen_exp = false;
+    let mut seen_point = false;
     for (i, &b) in field.iter().enumerate() {
         let out = match b {
             b'0'..=b'9' => {
@@ -78,7 +80,11 @@ pub fn parse_slow(field: &[u8]) -> Option<f64> {
                     return None;
                 }
             }
-            b'+' | b'-' | b'.' => b,
+            b'.' | b',' if !seen_point && !seen_exp => {
+                seen_point = true;
+                b'.'
+            }
+            b'+' | b'-' => b,
             _ => return None,
         };
         if n >= buf.len() {
@@ -162,6 +168,7 @@ mod tests {
         assert!(close(parse_field(b"-2.5d-2").unwrap(), -2.5e-2));
         assert!(close(parse_field(b"0.1234+105").unwrap(), 0.1234e105));
         assert!(close(parse_field(b"-0.9876-120").unwrap(), -0.9876e-120));
+        assert!(close(parse_field(b"1,25E-03").unwrap(), 1.25e-3));
     }
 
     #[test]
@@ -189,7 +196,18 @@ mod tests {
 
     #[test]
     fn rejects_words() {
-        for w in ["", "time", "1.0x", "--1", "1-", "e5", "1.0E+03+2", "12:30"] {
+        for w in [
+            "",
+            "time",
+            "1.0x",
+            "--1",
+            "1-",
+            "e5",
+            "1.0E+03+2",
+            "12:30",
+            "1.2.3",
+            "1,2,3",
+        ] {
             assert_eq!(parse_field(w.as_bytes()), None, "{w}");
         }
     }
