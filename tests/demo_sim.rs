@@ -424,3 +424,28 @@ mod cli {
         assert!(text.lines().count() < 800);
     }
 }
+
+#[test]
+fn sample_logs_regenerate_byte_for_byte() {
+    // Every file in sample-logs/ (but its README) is a catalogue case named by its stem.
+    let dir = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-logs");
+    let mut seen = 0;
+    for entry in std::fs::read_dir(&dir).unwrap() {
+        let path = entry.unwrap().path();
+        if path.extension().is_some_and(|e| e == "md") {
+            continue;
+        }
+        let stem = path.file_stem().unwrap().to_string_lossy().to_string();
+        let case = rhoscope::demo::find(&stem)
+            .unwrap_or_else(|| panic!("{} is not a catalogue case", path.display()));
+        let mut want = Vec::new();
+        case.write(&mut want).unwrap();
+        assert!(
+            std::fs::read(&path).unwrap() == want,
+            "{} differs from 'rhoscope demo --write {stem}'",
+            path.display()
+        );
+        seen += 1;
+    }
+    assert!(seen >= 3, "only {seen} sample logs");
+}

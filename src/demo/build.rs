@@ -245,6 +245,7 @@ pub fn setup(title: &str, model: Model, scheme: Scheme, step: StepRule, t_end_s:
         noise: None,
         restart: None,
         dt_min_s: None,
+        stop_on_printed_overflow: true,
     }
 }
 

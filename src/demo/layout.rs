@@ -37,8 +37,9 @@ pub enum Layout {
     /// One JSON object per row keyed by short names; non-finite numbers as the
     /// bare tokens `NaN` / `Infinity` that some JSON writers emit.
     JsonLines,
-    /// Fixed-width fields of `width` characters with `digits` significant digits
-    /// and a `D` exponent; `exp2` forces a two-digit exponent (asterisks beyond 99).
+    /// Fixed-width fields of `width` characters, each after one blank, with
+    /// `digits` significant digits and a `D` exponent; `exp2` forces a two-digit
+    /// exponent (asterisks beyond 99); `!` comment lines.
     Fixed {
         width: usize,
         digits: usize,
@@ -84,7 +85,14 @@ impl Layout {
             ),
             Layout::Fixed { width, .. } => Some(
                 cols.iter()
-                    .map(|c| format!("{:>w$}", c.short, w = *width))
+                    .map(|c| {
+                        let n = if c.unit.is_empty() {
+                            c.short.clone()
+                        } else {
+                            format!("{}[{}]", c.short, c.unit)
+                        };
+                        format!(" {n:>w$}", w = *width)
+                    })
                     .collect::<String>(),
             ),
             Layout::Headerless | Layout::JsonLines => None,
@@ -142,7 +150,8 @@ impl Layout {
                     if f.starts_with('*') {
                         overflowed = true;
                     }
-                    f
+                    // One blank before each field, as a 1X edit descriptor writes.
+                    format!(" {f}")
                 })
                 .collect::<String>(),
         };

@@ -128,6 +128,10 @@ pub struct Setup {
     /// The solver gives up (writes the row and an error comment) when the step
     /// falls below this, as solvers do when elements distort.
     pub dt_min_s: Option<f64>,
+    /// Stop at the first row whose printed values or state are non-finite (true),
+    /// or only once the state holds a NaN (false), as a solver whose only check is
+    /// for NaN.
+    pub stop_on_printed_overflow: bool,
 }
 
 /// What the run found out about itself once finished.
@@ -578,9 +582,18 @@ impl Run {
             .all(|x| x.is_finite())
     }
 
+    /// The state is usable: finite, or — for a solver that only checks for NaN —
+    /// free of NaN (infinities then run on until they meet and make one).
     fn finite_state(&self) -> bool {
         let s = &self.state;
-        s.u.iter().chain(s.v.iter()).all(|x| x.is_finite()) && self.dt_s.is_finite()
+        let ok = |x: &f64| {
+            if self.setup.stop_on_printed_overflow {
+                x.is_finite()
+            } else {
+                !x.is_nan()
+            }
+        };
+        s.u.iter().chain(s.v.iter()).all(ok) && ok(&self.dt_s)
     }
 
     fn advance(&mut self) {
@@ -645,7 +658,9 @@ impl Run {
             || self.step >= self.setup.max_steps;
         let too_small = self.setup.dt_min_s.is_some_and(|m| self.dt_s < m);
         let due = self.step.is_multiple_of(self.setup.every.max(1)) || end;
-        if !self.finite_state() || (due && self.printed_nonfinite()) {
+        if !self.finite_state()
+            || (due && self.setup.stop_on_printed_overflow && self.printed_nonfinite())
+        {
             self.emit_row();
             self.push_comment("error: non-finite value; run terminated");
             self.finished = true;
