@@ -263,3 +263,17 @@ fn decimal_commas_with_semicolons() {
     assert!(close(ev.rows[1].1[0], 0.001));
     assert!(close(ev.rows[1].1[1], 1.25e-3));
 }
+
+#[test]
+fn a_log_message_mid_file_is_not_a_header() {
+    let ev = read(b"time ke ie\n0 1 2\nrestarting from checkpoint\n1 1 2\n");
+    assert_eq!(ev.schemas.len(), 1);
+    assert!(ev.segments.is_empty());
+    assert_eq!(ev.rows.len(), 2);
+    assert_eq!(ev.skipped.len(), 1);
+    assert_eq!(ev.skipped[0].0, 3);
+    // A restart header with one more column, sharing the old names, is a new header.
+    let ev = read(b"time ke\n0 1\ntime ke ie\n0 1 2\n");
+    assert_eq!(names(&ev, 1), ["time", "ke", "ie"]);
+    assert_eq!(ev.segments, [(3, SegmentReason::NewHeader)]);
+}

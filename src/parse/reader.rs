@@ -175,9 +175,15 @@ impl Reader {
     }
 
     fn process_clean(&mut self, line: &[u8], sink: &mut dyn RowSink) {
-        if let Mode::Pattern(re) = &self.mode {
-            let re = re.clone();
-            return self.pattern_line(&re, line, sink);
+        if matches!(self.mode, Mode::Pattern(_)) {
+            // Borrow the regex out of `self` for the line (cloning it per line
+            // would build a fresh match cache each time).
+            let mode = std::mem::replace(&mut self.mode, Mode::Undecided);
+            if let Mode::Pattern(re) = &mode {
+                self.pattern_line(re, line, sink);
+            }
+            self.mode = mode;
+            return;
         }
         let t = trim(line);
         let Some(&first) = t.first() else { return };
@@ -226,7 +232,7 @@ impl Reader {
                 let cols = header::columns(&text, d);
                 let plausible = match &self.schema {
                     None => true,
-                    Some(s) => cols.len() >= 2 || cols.len() == s.columns.len(),
+                    Some(s) => plausible_new_header(&s.columns, &cols),
                 };
                 if !plausible {
                     sink.skipped(self.line, SkipReason::NotANumber { field: err });
@@ -398,6 +404,25 @@ impl Reader {
         }
         self.values = values;
     }
+}
+
+/// A line of words after data rows is taken for a new header only when it looks
+/// like one: at least half of its names shared with the current header, or, when
+/// the columns had no names yet, as many names as there are columns. Otherwise (a
+/// log message such as "restarting from checkpoint") it is skipped, and the
+/// column names stay.
+fn plausible_new_header(current: &[Column], new: &[Column]) -> bool {
+    let unnamed = current
+        .iter()
+        .enumerate()
+        .all(|(i, c)| c.name == format!("c{}", i + 1));
+    if unnamed {
+        return new.len() == current.len();
+    }
+    let norm = |c: &Column| roles::normalize(&c.name);
+    let known: Vec<String> = current.iter().map(norm).collect();
+    let shared = new.iter().filter(|c| known.contains(&norm(c))).count();
+    new.len() >= 2 && 2 * shared >= new.len()
 }
 
 fn initial_mode(format: &Format) -> Mode {
