@@ -29,7 +29,7 @@ pub struct DemoArgs {
     #[arg(long)]
     pub headless: bool,
 
-    /// List the labelled cases: name, expected level, onset and crash lines, description.
+    /// List the labelled cases: name, expected level, description.
     #[arg(long)]
     pub list: bool,
 

@@ -61,29 +61,21 @@ fn level_word(l: Level) -> &'static str {
     }
 }
 
-fn line_or_dash(l: Option<u64>) -> String {
-    l.map_or_else(|| "-".into(), |v| v.to_string())
-}
-
 fn list() -> anyhow::Result<i32> {
+    // Declared levels only: listing runs no simulation (onset and crash lines,
+    // which need the runs, are in the labels.csv written by --write-all).
     let stdout = std::io::stdout();
     let mut out = stdout.lock();
-    let cases = catalogue();
+    let cases = crate::demo::cases::specs();
     let w = cases.iter().map(|c| c.name.len()).max().unwrap_or(4);
     let mut print = || -> std::io::Result<()> {
-        writeln!(
-            out,
-            "{:w$}  {:8}  {:>6}  {:>6}  description",
-            "case", "expected", "onset", "crash"
-        )?;
+        writeln!(out, "{:w$}  {:8}  description", "case", "expected")?;
         for c in &cases {
             writeln!(
                 out,
-                "{:w$}  {:8}  {:>6}  {:>6}  {}",
+                "{:w$}  {:8}  {}",
                 c.name,
-                level_word(c.expected.level),
-                line_or_dash(c.expected.onset_line),
-                line_or_dash(c.expected.crash_line),
+                level_word(c.level),
                 c.description
             )?;
         }

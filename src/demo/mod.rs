@@ -92,37 +92,46 @@ fn label(level: Level, s: &Summary) -> Expected {
     }
 }
 
+static LABELS: OnceLock<Vec<(Expected, Summary)>> = OnceLock::new();
+
+fn labelled(c: &cases::Spec) -> (Expected, Summary) {
+    let s = Run::new((c.build)()).summarize();
+    (label(c.level, &s), s)
+}
+
+fn scenario(c: cases::Spec, (e, s): (Expected, Summary)) -> Scenario {
+    Scenario {
+        name: c.name,
+        description: c.description,
+        expected: e,
+        build: c.build,
+        summary: s,
+    }
+}
+
 /// All labelled cases, in a fixed order. The labels are computed once per
 /// process by running every case (a few seconds unoptimised).
 pub fn catalogue() -> Vec<Scenario> {
-    static LABELS: OnceLock<Vec<(Expected, Summary)>> = OnceLock::new();
     let specs = cases::specs();
-    let labels = LABELS.get_or_init(|| {
-        // One thread: tests of other parts that measure timing share the machine.
-        specs
-            .iter()
-            .map(|c| {
-                let s = Run::new((c.build)()).summarize();
-                (label(c.level, &s), s)
-            })
-            .collect()
-    });
+    // One thread: tests of other parts that measure timing share the machine.
+    let labels = LABELS.get_or_init(|| specs.iter().map(labelled).collect());
     specs
         .into_iter()
-        .zip(labels.iter())
-        .map(|(c, (e, s))| Scenario {
-            name: c.name,
-            description: c.description,
-            expected: *e,
-            build: c.build,
-            summary: s.clone(),
-        })
+        .zip(labels.iter().cloned())
+        .map(|(c, l)| scenario(c, l))
         .collect()
 }
 
-/// The case of that name.
+/// The case of that name, labelled by running that case alone (unless the
+/// whole catalogue has been labelled already).
 pub fn find(name: &str) -> Option<Scenario> {
-    catalogue().into_iter().find(|s| s.name == name)
+    let specs = cases::specs();
+    let i = specs.iter().position(|c| c.name == name)?;
+    let l = match LABELS.get() {
+        Some(all) => all[i].clone(),
+        None => labelled(&specs[i]),
+    };
+    Some(scenario(specs[i], l))
 }
 
 /// Name of the default scenario of `rhoscope demo`.
