@@ -22,6 +22,16 @@ fn bar(frac: f64) -> String {
     format!("[{}{}]", "#".repeat(full), "·".repeat(BAR - full))
 }
 
+/// `path` cut to at most `max` characters, keeping its end (`…n-0/history.csv`).
+fn shorten(path: &str, max: usize) -> String {
+    let n = path.chars().count();
+    if n <= max {
+        return path.to_string();
+    }
+    let tail: String = path.chars().skip(n + 1 - max).collect();
+    format!("…{tail}")
+}
+
 /// Two lines: who and what state; where the run is and whether it will finish.
 pub fn render(f: &mut Frame, area: Rect, s: &AppState, t: &Theme) {
     let wide = area.width >= 110;
@@ -31,7 +41,13 @@ pub fn render(f: &mut Frame, area: Rect, s: &AppState, t: &Theme) {
             t.badge(s.level),
         ),
         Span::raw(" "),
-        Span::styled(s.config.file.clone(), t.title()),
+        Span::styled(
+            shorten(
+                &s.config.file,
+                usize::from(area.width).saturating_sub(50).max(12),
+            ),
+            t.title(),
+        ),
         Span::styled(format!("  rows {}", count(s.rows)), t.text()),
     ];
     if s.skipped > 0 {
@@ -102,7 +118,9 @@ pub fn render(f: &mut Frame, area: Rect, s: &AppState, t: &Theme) {
         None if s.rows > 0 => l2.push(Span::raw(format!(" line {}", count(s.last_line)))),
         None => l2.push(Span::styled(" waiting for the first rows", t.dim())),
     }
-    if let Some(r) = s.speed.steps_per_s() {
+    // Once the file has stopped growing, pace and time to finish are stale.
+    let flowing = s.quiet_for_s().is_none();
+    if flowing && let Some(r) = s.speed.steps_per_s() {
         let unit = if s.speed.rows_not_steps {
             "rows/s"
         } else {
@@ -110,7 +128,7 @@ pub fn render(f: &mut Frame, area: Rect, s: &AppState, t: &Theme) {
         };
         l2.push(Span::raw(format!("  {} {unit}", num(Some(r), 3))));
     }
-    if let Some(ttf) = s.time_to_finish_s() {
+    if flowing && let Some(ttf) = s.time_to_finish_s() {
         let w = if wide { "finish in" } else { "finish" };
         l2.push(Span::raw(format!("  {w} {}", duration(Some(ttf)))));
     }
@@ -118,7 +136,7 @@ pub fn render(f: &mut Frame, area: Rect, s: &AppState, t: &Theme) {
         let w = if wide { "wall left" } else { "wall" };
         l2.push(Span::raw(format!("  {w} {}", duration(Some(left)))));
     }
-    match s.finishes_in_time() {
+    match s.finishes_in_time().filter(|_| flowing) {
         Some(true) => l2.push(Span::styled(
             if wide {
                 "  ✔ finishes in time"
@@ -147,4 +165,17 @@ pub fn render(f: &mut Frame, area: Rect, s: &AppState, t: &Theme) {
         l2.push(Span::styled(format!("  {note}"), t.dim()));
     }
     f.render_widget(Paragraph::new(vec![Line::from(l1), Line::from(l2)]), area);
+}
+
+#[cfg(test)]
+mod tests {
+    use super::shorten;
+
+    #[test]
+    fn long_paths_keep_their_end() {
+        assert_eq!(shorten("a/b.csv", 12), "a/b.csv");
+        let s = shorten("/tmp/rhoscope-demo-19084-0/history.csv", 20);
+        assert_eq!(s.chars().count(), 20);
+        assert!(s.starts_with('…') && s.ends_with("/history.csv"));
+    }
 }
