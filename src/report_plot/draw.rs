@@ -50,7 +50,7 @@ pub(super) fn svg(data: &PlotData, size: (u32, u32)) -> Result<String, PlotError
     let mut out = String::new();
     {
         let root = SVGBackend::with_string(&mut out, size).into_drawing_area();
-        page(&root, data)?;
+        page(&root, true, data)?;
         root.present().map_err(err)?;
     }
     Ok(out)
@@ -63,7 +63,7 @@ pub(super) fn png(data: &PlotData, size: (u32, u32)) -> Result<Vec<u8>, PlotErro
     let mut rgb = vec![0u8; w as usize * h as usize * 3];
     {
         let root = BitMapBackend::with_buffer(&mut rgb, size).into_drawing_area();
-        page(&root, data)?;
+        page(&root, false, data)?;
         root.present().map_err(err)?;
     }
     let mut out = Vec::new();
@@ -207,8 +207,10 @@ fn x_range(data: &PlotData) -> (f64, f64) {
     }
 }
 
+/// `joins`: the backend draws wide polylines with sane joins (SVG does).
 fn page<DB: DrawingBackend>(
     root: &DrawingArea<DB, Shift>,
+    joins: bool,
     data: &PlotData,
 ) -> Result<(), PlotError> {
     root.fill(&WHITE).map_err(err)?;
@@ -267,7 +269,7 @@ fn page<DB: DrawingBackend>(
         },
     ];
     for (area, panel) in areas.iter().zip(panels.iter()) {
-        draw_panel(area, panel, xr, &data.x_label, &data.markers)?;
+        draw_panel(area, joins, panel, xr, &data.x_label, &data.markers)?;
     }
     Ok(())
 }
@@ -343,6 +345,7 @@ fn y_range(panel: &Panel) -> Option<(f64, f64)> {
 
 fn draw_panel<DB: DrawingBackend>(
     area: &DrawingArea<DB, Shift>,
+    joins: bool,
     panel: &Panel,
     (x0, x1): (f64, f64),
     x_label: &str,
@@ -419,6 +422,13 @@ fn draw_panel<DB: DrawingBackend>(
         let anno = if dashed {
             chart
                 .draw_series(DashedLineSeries::new(pts, 8, 5, style))
+                .map_err(err)?
+        } else if width > 1 && !joins {
+            // The bitmap backend joins wide polylines with unlimited mitres,
+            // which spike at the sharp turns of an envelope: draw the
+            // segments separately instead.
+            chart
+                .draw_series(pts.windows(2).map(|w| PathElement::new(w.to_vec(), style)))
                 .map_err(err)?
         } else {
             chart
