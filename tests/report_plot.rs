@@ -186,7 +186,9 @@ fn sample_logs() -> Vec<PathBuf> {
 #[test]
 fn every_sample_log_gets_an_image() {
     let dir = tempfile::tempdir().unwrap();
-    for log in sample_logs() {
+    let logs = sample_logs();
+    assert!(!logs.is_empty(), "no sample logs found");
+    for log in logs {
         let stem = log.file_stem().unwrap().to_string_lossy().to_string();
         for ext in ["svg", "png"] {
             let image = dir.path().join(format!("{stem}.{ext}"));
