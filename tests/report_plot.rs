@@ -207,6 +207,25 @@ fn every_sample_log_gets_an_image() {
                     "{}",
                     log.display()
                 );
+                // The badge states the same verdict as the exit code (0 ok, 1 warning, 2 critical).
+                let verdict = match out.status.code() {
+                    Some(0) => "OK",
+                    Some(1) => "WARNING",
+                    _ => "CRITICAL",
+                };
+                assert!(
+                    texts.iter().any(|t| t == verdict),
+                    "{}: no '{verdict}' badge in {texts:?}",
+                    log.display()
+                );
+                // A critical verdict comes with at least one labelled critical alarm marker.
+                if out.status.code() == Some(2) {
+                    assert!(
+                        texts.iter().any(|t| t.starts_with("C1")),
+                        "{}: no critical alarm marker in {texts:?}",
+                        log.display()
+                    );
+                }
             } else {
                 assert_eq!(&bytes[..8], b"\x89PNG\r\n\x1a\n", "{}", log.display());
             }
