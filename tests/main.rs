@@ -1,8 +1,10 @@
 //! The integration-test crate: one binary, one module per area.
 #![allow(clippy::unwrap_used)]
 
+mod batch_job;
 mod demo_sim;
 mod detect_checks;
+mod fleet_cli;
 mod guard;
 mod limits_cli;
 mod parse_formats;

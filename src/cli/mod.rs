@@ -4,6 +4,7 @@
 pub mod actions;
 pub mod columns;
 pub mod demo;
+pub mod fleet;
 pub mod guard;
 pub mod input;
 pub mod limits;
@@ -35,4 +36,6 @@ pub enum Command {
     Watch(watch::WatchArgs),
     /// Run an invented simulation that goes unstable, watched and stopped.
     Demo(demo::DemoArgs),
+    /// Follow many runs at once, worst first, and publish their state as metrics.
+    Fleet(fleet::FleetArgs),
 }

@@ -3,6 +3,7 @@
 pub mod columns;
 pub mod demo;
 pub mod demo_dashboard;
+pub mod fleet;
 pub mod guard;
 pub mod limits;
 pub mod scan;
@@ -33,6 +34,7 @@ pub fn run_from_env() -> i32 {
         Command::Guard(a) => guard::run(a),
         Command::Watch(a) => watch::run(a),
         Command::Demo(a) => demo::run(a),
+        Command::Fleet(a) => fleet::run(a),
     };
     match result {
         Ok(code) => code,
