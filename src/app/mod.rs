@@ -5,6 +5,7 @@
 
 pub mod batch;
 pub mod feed;
+pub mod fleet;
 pub mod run;
 pub mod speed;
 pub mod state;

@@ -124,6 +124,8 @@ pub struct AppState {
     pub dirty: bool,
     /// The loop should end.
     pub quit: bool,
+    /// Esc with no dialog open leaves the dashboard (opened from the fleet view).
+    pub esc_quits: bool,
 }
 
 impl AppState {
@@ -174,6 +176,7 @@ impl AppState {
             note: None,
             dirty: true,
             quit: false,
+            esc_quits: false,
         }
     }
 

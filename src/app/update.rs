@@ -183,6 +183,10 @@ impl AppState {
                 self.quit = true;
                 fx.push(Effect::Quit);
             }
+            Key::Esc if self.esc_quits => {
+                self.quit = true;
+                fx.push(Effect::Quit);
+            }
             Key::Char('?') | Key::Char('h') => self.dialog = Some(Dialog::Help),
             Key::Char(' ') | Key::Char('p') => {
                 self.view.paused_at = match self.view.paused_at {

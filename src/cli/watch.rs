@@ -17,6 +17,9 @@ Examples:
   # solver polls for (as guard does); X in the dashboard does it by hand.
   rhoscope watch run/history.csv --touch run/STOP --events watch.jsonl
 
+  # Many runs, worst first; Enter opens one, Esc comes back.
+  rhoscope watch 'study/*/history.csv' --end-time 0.05
+
 Keys: q quit, space pause, + and - zoom, 0 whole run, Tab probe signal,
 a acknowledge, X stop the run (asks y/N first), ? help.
 
@@ -34,6 +37,16 @@ pub struct WatchArgs {
     /// The history file the solver writes (it may not exist yet).
     #[arg(value_name = "FILE")]
     pub file: PathBuf,
+    /// More histories, for the fleet view (one line per run). FILE may also be
+    /// a quoted pattern such as 'runs/*/history.csv'; new matches join.
+    #[arg(value_name = "MORE")]
+    pub more: Vec<PathBuf>,
+    /// Fleet view: a run whose history has not grown for this long is stalled.
+    #[arg(long, value_name = "DURATION", value_parser = parse_duration, default_value = "10m")]
+    pub stall_after: Duration,
+    /// Esc leaves the dashboard (set when opened from the fleet view).
+    #[arg(skip)]
+    pub esc_back: bool,
     /// Simulated end time of the run in seconds, for progress and time to finish.
     #[arg(long, value_name = "SECONDS")]
     pub end_time: Option<f64>,

@@ -139,6 +139,9 @@ pub fn run(headless: bool) -> anyhow::Result<i32> {
             events: Some(dir.join("events.jsonl")),
             fps: 10,
             retention_rows: crate::history::DEFAULT_RETENTION_ROWS,
+            more: Vec::new(),
+            stall_after: Duration::from_secs(600),
+            esc_back: false,
         })
     };
     // The dashboard may be left before the run ends (and the guard may fail):

@@ -9,6 +9,7 @@ pub mod limits;
 pub mod scan;
 pub mod scan_plot;
 pub mod watch;
+pub mod watch_fleet;
 
 use clap::Parser;
 

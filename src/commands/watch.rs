@@ -117,6 +117,9 @@ pub fn colour_allowed() -> bool {
 /// Run `rhoscope watch`; returns the exit code.
 pub fn run(args: WatchArgs) -> anyhow::Result<i32> {
     tui::install_panic_hook();
+    if super::watch_fleet::is_fleet(&args) {
+        return super::watch_fleet::run(args);
+    }
     if args.file.is_dir() {
         bail!(
             "'{}' is a directory, not a history file",
@@ -166,6 +169,7 @@ fn watch(
         auto_stop: !args.by_key_only,
         retention_rows: args.retention_rows,
     });
+    state.esc_quits = args.esc_back;
     if !Path::new(&args.file).exists() {
         state.note = Some("waiting for the file to appear".into());
     }

@@ -7,6 +7,7 @@
 pub mod chart;
 pub mod energy;
 pub mod events;
+pub mod fleet;
 pub mod format;
 pub mod growth;
 pub mod header;
