@@ -337,10 +337,55 @@ pub fn detect(name: &str) -> (Role, String) {
             }
         }
     }
+    if let Some((term, stem)) = energy_abbreviation(&words) {
+        return (
+            Role::Energy(term),
+            format!("energy abbreviation \"{stem}\""),
+        );
+    }
     (
         Role::Probe,
         "no role word; any other numeric column is a probe".to_owned(),
     )
+}
+
+/// Word stems of the energy terms, for short names such as `E_damp` or `Ehg`
+/// (first match wins, so `interf` comes before `int`).
+const ENERGY_STEMS: &[(&str, EnergyTerm)] = &[
+    ("kin", EnergyTerm::Kinetic),
+    ("interf", EnergyTerm::Artificial),
+    ("int", EnergyTerm::Internal),
+    ("strain", EnergyTerm::Internal),
+    ("elast", EnergyTerm::Internal),
+    ("pot", EnergyTerm::Internal),
+    ("ext", EnergyTerm::ExternalWork),
+    ("damp", EnergyTerm::Dissipated),
+    ("diss", EnergyTerm::Dissipated),
+    ("fric", EnergyTerm::Dissipated),
+    ("plast", EnergyTerm::Dissipated),
+    ("visc", EnergyTerm::Dissipated),
+    ("hg", EnergyTerm::Artificial),
+    ("hour", EnergyTerm::Artificial),
+    ("cont", EnergyTerm::Artificial),
+    ("pen", EnergyTerm::Artificial),
+    ("art", EnergyTerm::Artificial),
+    ("stab", EnergyTerm::Artificial),
+    ("tot", EnergyTerm::Total),
+];
+
+/// `E damp`, `damp energy`, `Edamp`, `W ext`: an energy letter or word with a
+/// term's stem.
+fn energy_abbreviation<'a>(words: &[&'a str]) -> Option<(EnergyTerm, &'a str)> {
+    let stem = match *words {
+        ["e" | "en" | "energy", s] | [s, "e" | "energy"] => s,
+        ["w", s] if s.starts_with("ext") => s,
+        [w] if w.len() >= 4 && w.starts_with('e') => &w[1..],
+        _ => return None,
+    };
+    ENERGY_STEMS
+        .iter()
+        .find(|(p, _)| stem.starts_with(p))
+        .map(|(_, t)| (*t, stem))
 }
 
 /// Assign a role to every column of `schema`: overrides first, then name matching.
@@ -413,6 +458,13 @@ mod tests {
         assert_eq!(role("disp node 12 [µm]"), Role::Probe);
         assert_eq!(role("TimeStep"), Role::StepSize);
         assert_eq!(role("contact force"), Role::Probe);
+        assert_eq!(role("E_damp [J]"), Role::Energy(EnergyTerm::Dissipated));
+        assert_eq!(role("E_hg"), Role::Energy(EnergyTerm::Artificial));
+        assert_eq!(role("Edamp"), Role::Energy(EnergyTerm::Dissipated));
+        assert_eq!(role("e_interface"), Role::Energy(EnergyTerm::Artificial));
+        assert_eq!(role("visc energy"), Role::Energy(EnergyTerm::Dissipated));
+        assert_eq!(role("edge"), Role::Probe);
+        assert_eq!(role("u_x"), Role::Probe);
         assert_eq!(role("plastic strain"), Role::Probe);
         assert_eq!(
             role("total kinetic energy"),
