@@ -29,6 +29,9 @@ impl Hint {
         let (tx, rx) = sync_channel::<()>(1);
         let mut watcher = notify::recommended_watcher(move |res: notify::Result<notify::Event>| {
             let relevant = match (&res, &name) {
+                // Opens, reads and closes without writing — the follower's own
+                // included — say nothing new; waking on them would feed a loop.
+                (Ok(ev), _) if matches!(ev.kind, notify::EventKind::Access(_)) => false,
                 (Ok(ev), Some(n)) => {
                     ev.paths.is_empty() || ev.paths.iter().any(|p| p.file_name() == Some(n))
                 }
