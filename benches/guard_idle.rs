@@ -14,7 +14,10 @@ const MEASURE: Duration = Duration::from_secs(15);
 /// CPU seconds used so far by `pid`.
 fn cpu_s(pid: u32) -> Option<f64> {
     if let Ok(s) = std::fs::read_to_string(format!("/proc/{pid}/schedstat"))
-        && let Some(ns) = s.split_whitespace().next().and_then(|v| v.parse::<f64>().ok())
+        && let Some(ns) = s
+            .split_whitespace()
+            .next()
+            .and_then(|v| v.parse::<f64>().ok())
     {
         return Some(ns * 1e-9);
     }

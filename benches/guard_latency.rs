@@ -36,7 +36,11 @@ fn trial(notify: bool, poll: Duration, phase: Duration) -> Option<Duration> {
     let mut text = String::from("time,displacement,velocity\n");
     for i in 0..200 {
         let t = i as f64 * 1e-3;
-        text.push_str(&format!("{t:.6},{:.6e},{:.6e}\n", (31.4 * t).cos(), -(31.4 * t).sin()));
+        text.push_str(&format!(
+            "{t:.6},{:.6e},{:.6e}\n",
+            (31.4 * t).cos(),
+            -(31.4 * t).sin()
+        ));
     }
     std::fs::write(&path, &text).ok()?;
     let (tx, rx) = mpsc::channel::<Instant>();
