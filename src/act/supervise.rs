@@ -17,6 +17,9 @@ use crate::parse::{SegmentReason, SkipReason};
 use crate::pipeline::{Pipeline, PipelineSink};
 use crate::source::{Event, Source};
 
+/// Bytes handed to the pipeline at a time.
+const FEED_SLICE_BYTES: usize = 16 * 1024;
+
 /// When the loop ends besides the escalation finishing.
 #[derive(Debug, Clone, Copy, Default)]
 pub struct SuperviseOptions {
@@ -134,9 +137,16 @@ struct Loop<'a> {
 }
 
 impl Loop<'_> {
+    /// Feed in slices, and stop once the escalation is complete: what follows
+    /// would not change what guard does.
     fn feed(&mut self, bytes: &[u8], now: Instant) {
         let arrival_s = now.duration_since(self.started).as_secs_f64();
-        self.pipeline.feed(bytes, Some(arrival_s), &mut self.rx);
+        for piece in bytes.chunks(FEED_SLICE_BYTES) {
+            self.pipeline.feed(piece, Some(arrival_s), &mut self.rx);
+            if self.rx.escalation.finished() {
+                return;
+            }
+        }
     }
 
     fn restart(&mut self) {
