@@ -134,24 +134,71 @@ struct Loop<'a> {
     pipeline: &'a mut Pipeline,
     rx: Reactor<'a>,
     started: Instant,
+    /// Bytes of the file as it was when guard started that are still to be read.
+    backlog_left: Option<u64>,
 }
 
 impl Loop<'_> {
-    /// Feed in slices, and stop once the escalation is complete: what follows
-    /// would not change what guard does.
+    /// Feed new bytes. Those that were in the file when guard started are the
+    /// backlog; the first byte past them is live, even when guard reads slower
+    /// than the run writes.
     fn feed(&mut self, bytes: &[u8], now: Instant) {
         let arrival_s = now.duration_since(self.started).as_secs_f64();
+        let mut rest = bytes;
+        if !self.rx.caught_up
+            && let Some(left) = self.backlog_left
+        {
+            let k = usize::try_from(left).unwrap_or(usize::MAX).min(rest.len());
+            self.feed_slices(&rest[..k], arrival_s);
+            let left = left - k as u64;
+            self.backlog_left = Some(left);
+            rest = &rest[k..];
+            if left == 0 {
+                self.catch_up();
+            }
+        }
+        self.feed_slices(rest, arrival_s);
+    }
+
+    /// Feed in slices, and stop once the escalation is complete: what follows
+    /// would not change what guard does.
+    fn feed_slices(&mut self, bytes: &[u8], arrival_s: f64) {
         for piece in bytes.chunks(FEED_SLICE_BYTES) {
-            self.pipeline.feed(piece, Some(arrival_s), &mut self.rx);
             if self.rx.escalation.finished() {
                 return;
             }
+            self.pipeline.feed(piece, Some(arrival_s), &mut self.rx);
+        }
+    }
+
+    /// The backlog is read: from now on a triggering alarm acts at once.
+    fn catch_up(&mut self) {
+        if self.rx.caught_up {
+            return;
+        }
+        self.rx.caught_up = true;
+        self.rx.log.note(&format!(
+            "caught up: {} lines read, following live",
+            self.pipeline.lines()
+        ));
+        if let Some(a) = &self.rx.held {
+            self.rx.log.note(&format!(
+                "a {} alarm at line {} was already in the file: acting only if the run \
+                 writes on in that segment",
+                serde_json::to_value(a.level)
+                    .ok()
+                    .and_then(|v| v.as_str().map(str::to_owned))
+                    .unwrap_or_default(),
+                a.line
+            ));
         }
     }
 
     fn restart(&mut self) {
         self.rx.new_segment();
         self.pipeline.restart(&mut self.rx);
+        // A new file's bytes are all new.
+        self.catch_up();
     }
 }
 
@@ -180,6 +227,7 @@ pub fn supervise<S: Source>(
             held: None,
         },
         started,
+        backlog_left: None,
     };
     let mut last_growth: Option<Instant> = None;
     let mut last_error: Option<String> = None;
@@ -189,6 +237,9 @@ pub fn supervise<S: Source>(
         match source.poll() {
             Ok(Some(Event::Data(bytes))) => {
                 last_growth = Some(now);
+                if lp.backlog_left.is_none() {
+                    lp.backlog_left = source.start_size();
+                }
                 lp.feed(&bytes, now);
             }
             Ok(Some(Event::Restart(r))) => {
@@ -214,23 +265,8 @@ pub fn supervise<S: Source>(
                 quiet = true;
             }
         }
-        if quiet && !lp.rx.caught_up {
-            lp.rx.caught_up = true;
-            lp.rx.log.note(&format!(
-                "caught up: {} lines read, following live",
-                lp.pipeline.lines()
-            ));
-            if let Some(a) = &lp.rx.held {
-                lp.rx.log.note(&format!(
-                    "a {} alarm at line {} was already in the file: acting only if the run \
-                     writes on in that segment",
-                    serde_json::to_value(a.level)
-                        .ok()
-                        .and_then(|v| v.as_str().map(str::to_owned))
-                        .unwrap_or_default(),
-                    a.line
-                ));
-            }
+        if quiet {
+            lp.catch_up();
         }
         let pid_alive = opts.pid.map(|p| p.alive());
         let activity = Activity {

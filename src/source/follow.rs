@@ -56,6 +56,7 @@ pub struct Follower {
     head: Vec<u8>,
     tail: Vec<u8>,
     seen: bool,
+    start_size: Option<u64>,
     missing: bool,
     hinted: bool,
     last_check: Option<Instant>,
@@ -78,6 +79,7 @@ impl Follower {
             head: Vec::new(),
             tail: Vec::new(),
             seen: false,
+            start_size: None,
             missing: false,
             hinted: false,
             last_check: None,
@@ -152,6 +154,7 @@ impl Follower {
         let file = match File::open(&self.path) {
             Ok(f) => f,
             Err(e) if e.kind() == io::ErrorKind::NotFound => {
+                self.start_size.get_or_insert(0);
                 if self.seen && !self.missing {
                     self.missing = true;
                     self.pending.push_back(Event::Missing);
@@ -168,6 +171,7 @@ impl Follower {
         let meta = file.metadata()?;
         let id = (meta.dev(), meta.ino());
         let size = meta.len();
+        self.start_size.get_or_insert(size);
         let was_missing = std::mem::replace(&mut self.missing, false);
         match self.id {
             None => {
@@ -264,6 +268,10 @@ impl Source for Follower {
             }
         }
         Ok(self.pending.pop_front())
+    }
+
+    fn start_size(&self) -> Option<u64> {
+        self.start_size
     }
 
     fn wait(&mut self, max: Duration) {

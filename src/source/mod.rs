@@ -70,6 +70,12 @@ pub trait Source {
     fn ended(&self) -> bool {
         false
     }
+
+    /// Size in bytes of what was already there when following began (0 when the
+    /// file did not exist yet), once known; `None` when the source cannot tell.
+    fn start_size(&self) -> Option<u64> {
+        None
+    }
 }
 
 /// A message from a source thread: the event and when it was read.
