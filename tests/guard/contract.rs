@@ -56,15 +56,23 @@ fn a_blow_up_written_at_20000_lines_per_s_is_stopped_before_its_crash_line() {
     // ×1.01 per row: about 70,000 rows from onset to overflow.
     let (text, crash_line) = blow_up(1.01);
     fs::write(&input, &text).unwrap();
-    // The writer first, so that a slow start of it on a busy machine cannot
-    // pass for an idle file; guard then reads a backlog and follows live.
-    let w = Writer::fast(&input, &out, &stop);
-    eventually("the history to appear", || out.exists());
+    // Guard first, ready before the run starts (a slow start of guard on a busy
+    // machine is not what is measured), with an idle limit longer than the
+    // writer's start-up can take.
     let mut g = Guard::start(
         dir.path(),
         &out,
-        &["--touch", stop.to_str().unwrap(), "--idle-exit", "3s"],
+        &["--touch", stop.to_str().unwrap(), "--idle-exit", "30s"],
     );
+    eventually("guard to be ready", || {
+        of_kind(&g.events(), "note").iter().any(|n| {
+            n["message"]
+                .as_str()
+                .unwrap_or("")
+                .contains("following live")
+        })
+    });
+    let w = Writer::fast(&input, &out, &stop);
     assert_eq!(g.code(), 2, "{}", g.stderr_text());
     assert!(w.stopped(), "the writer saw the stop file");
     let written = line_count(&out);
