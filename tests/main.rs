@@ -4,6 +4,7 @@
 mod batch_job;
 mod demo_sim;
 mod detect_checks;
+mod detect_eval;
 mod fleet_cli;
 mod guard;
 mod limits_cli;

@@ -4,6 +4,7 @@
 pub mod actions;
 pub mod columns;
 pub mod demo;
+pub mod evaluate;
 pub mod fleet;
 pub mod guard;
 pub mod input;
@@ -38,4 +39,6 @@ pub enum Command {
     Demo(demo::DemoArgs),
     /// Follow many runs at once, worst first, and publish their state as metrics.
     Fleet(fleet::FleetArgs),
+    /// Score the detectors on the labelled demo cases (the same pipeline as scan).
+    Evaluate(evaluate::EvaluateArgs),
 }

@@ -4,6 +4,7 @@ pub mod columns;
 pub mod demo;
 pub mod demo_dashboard;
 pub mod fleet;
+pub mod evaluate;
 pub mod guard;
 pub mod limits;
 pub mod scan;
@@ -36,6 +37,7 @@ pub fn run_from_env() -> i32 {
         Command::Watch(a) => watch::run(a),
         Command::Demo(a) => demo::run(a),
         Command::Fleet(a) => fleet::run(a),
+        Command::Evaluate(a) => evaluate::run(a),
     };
     match result {
         Ok(code) => code,

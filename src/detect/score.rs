@@ -45,7 +45,15 @@ pub fn score(name: &str, expected: Label, alarms: &[Alarm]) -> CaseScore {
     let first_crit = alarms.iter().find(|a| a.level == Level::Critical);
     let (mut lead, mut detected) = (None, false);
     if expected.level == Level::Critical {
-        let before_crash = |l: u64| expected.crash_line.is_none_or(|c| l < c);
+        // Before the crash line; when nothing announces the crash (onset on the
+        // crash line itself, as a NaN out of nowhere), on that line.
+        let unannounced =
+            expected.onset_line.is_some() && expected.onset_line == expected.crash_line;
+        let before_crash = |l: u64| {
+            expected
+                .crash_line
+                .is_none_or(|c| l < c || (unannounced && l == c))
+        };
         detected = first_crit.is_some_and(|a| before_crash(a.line));
         if let (Some(c), Some(o), Some(a)) = (expected.crash_line, expected.onset_line, first_crit)
             && c > o

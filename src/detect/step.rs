@@ -19,6 +19,14 @@ const WARN_DROP: f64 = 1e-2;
 const CRITICAL_DROP: f64 = 1e-3;
 /// "Still falling": the step is below this fraction of its value `TREND_ROWS` ago.
 const FALLING: f64 = 0.5;
+/// Rows over which a steady decline of the step is judged.
+const DECLINE_ROWS: usize = 64;
+/// "Still falling" within a decline: under this fraction of the step
+/// `TREND_ROWS` earlier (and at mid-span, of the step at its start).
+const STILL_FALLING: f64 = 0.9;
+/// A steady decline counts once the step is under this fraction of its peak
+/// (one order of magnitude).
+const DECLINE_DROP: f64 = 0.1;
 /// Rows the step must stay under `WARN_DROP` of its peak before a warning.
 const PERSIST_ROWS: usize = 3;
 /// Rows under `WARN_DROP` of the peak, without recovering, that mean the run
@@ -44,7 +52,7 @@ pub struct StepSize {
     prev_time: Option<f64>,
     prev_step: Option<f64>,
     peak: f64,
-    dts: [f64; TREND_ROWS],
+    dts: [f64; DECLINE_ROWS],
     res: [f64; TREND_ROWS],
     cuts: [bool; TREND_ROWS],
     rows: usize,
@@ -71,7 +79,7 @@ impl StepSize {
             prev_time: None,
             prev_step: None,
             peak: 0.0,
-            dts: [f64::NAN; TREND_ROWS],
+            dts: [f64::NAN; DECLINE_ROWS],
             res: [f64::NAN; TREND_ROWS],
             cuts: [false; TREND_ROWS],
             rows: 0,
@@ -199,15 +207,30 @@ impl Detector for StepSize {
             return;
         };
         self.last_dt = Some(dt);
-        let old = self.dts[slot];
-        self.dts[slot] = dt;
+        let long_slot = (self.rows - 1) % DECLINE_ROWS;
+        let long_ago = self.dts[long_slot];
+        let old = self.dts[(self.rows - 1 + DECLINE_ROWS - TREND_ROWS) % DECLINE_ROWS];
+        self.dts[long_slot] = dt;
+        // A sustained decline: an order of magnitude under the peak, the
+        // newest step the smallest of the last DECLINE_ROWS, half of what it
+        // was DECLINE_ROWS ago, and falling in both halves of that span (a
+        // sudden drop or a dip that holds or recovers does not qualify).
+        let newest_smallest = self.dts.iter().all(|v| !v.is_finite() || *v >= dt);
+        let mid = self.dts[(self.rows - 1 + DECLINE_ROWS / 2) % DECLINE_ROWS];
+        let declining = long_ago.is_finite()
+            && dt < FALLING * long_ago
+            && mid < STILL_FALLING * long_ago
+            && old.is_finite()
+            && dt < STILL_FALLING * old
+            && newest_smallest
+            && dt < DECLINE_DROP * self.peak.max(dt);
         self.peak = self.peak.max(dt);
         let ratio = dt / self.peak;
         self.below = if ratio < WARN_DROP { self.below + 1 } else { 0 };
         let recovering = old.is_finite() && dt > old;
         let halving = old.is_finite() && dt < FALLING * old;
         let stalled = self.below >= STALL_ROWS && !recovering;
-        let level = if (ratio < CRITICAL_DROP && halving) || stalled {
+        let level = if (ratio < CRITICAL_DROP && halving) || stalled || declining {
             Level::Critical
         } else if self.below >= PERSIST_ROWS {
             Level::Warning
@@ -223,10 +246,24 @@ impl Detector for StepSize {
                     dt,
                     ratio * 100.0
                 ),
-                _ => format!(
-                    "Time step collapsing: {:.3e}, {:.1e} of its peak {:.3e} and still falling — elements are distorting; expect the run to stall or stop.",
-                    dt, ratio, self.peak
-                ),
+                _ => {
+                    let mut m = format!(
+                        "Time step collapsing: {:.3e}, {:.1e} of its peak {:.3e} and still falling — elements are distorting; expect the run to stall or stop.",
+                        dt, ratio, self.peak
+                    );
+                    // Geometric decline by r per output: the simulated time still
+                    // reachable is bounded by the sum Δt_row·(1 + r + r² + …).
+                    if long_ago.is_finite() && dt < long_ago {
+                        let r = (dt / long_ago).powf(1.0 / DECLINE_ROWS as f64);
+                        if let (Some(t), Some(tpr)) = (time, self.clock.time_per_row) {
+                            m += &format!(
+                                " At this rate of decline the run cannot get past t = {:.6e}.",
+                                t + tpr / (1.0 - r)
+                            );
+                        }
+                    }
+                    m
+                }
             };
             self.level = level;
             out.push(Finding {
