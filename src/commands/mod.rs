@@ -3,8 +3,8 @@
 pub mod columns;
 pub mod demo;
 pub mod demo_dashboard;
-pub mod fleet;
 pub mod evaluate;
+pub mod fleet;
 pub mod guard;
 pub mod limits;
 pub mod scan;
