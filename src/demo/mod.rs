@@ -136,32 +136,3 @@ pub fn find(name: &str) -> Option<Scenario> {
 
 /// Name of the default scenario of `rhoscope demo`.
 pub const DEMO_SCENARIO: &str = "demo-tower-contact";
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    /// Development aid: prints every case's self-measured summary.
-    #[test]
-    #[ignore]
-    fn print_summaries() {
-        for c in cases::specs() {
-            let t0 = std::time::Instant::now();
-            let s = Run::new((c.build)()).summarize();
-            println!(
-                "{:28} {:?} lines={} unst={:?} coll={:?} crash={:?} drift={:?} maxbal={:.4} finbal={:.4} mindt={:.3} [{:.2}s]",
-                c.name,
-                c.level,
-                s.lines,
-                s.unstable_line,
-                s.collapse_line,
-                s.crash_line,
-                s.drift_line,
-                s.max_balance_rel,
-                s.final_balance_rel,
-                s.min_dt_ratio,
-                t0.elapsed().as_secs_f64()
-            );
-        }
-    }
-}
