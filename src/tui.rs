@@ -6,10 +6,8 @@
 //! resizes. Headless commands never call anything here.
 
 use std::io::{self, Stdout};
-use std::sync::Arc;
-use std::sync::atomic::{AtomicBool, Ordering};
+use std::sync::atomic::Ordering;
 use std::sync::mpsc::SyncSender;
-use std::thread::JoinHandle;
 use std::time::Duration;
 
 use ratatui::Terminal;
@@ -22,6 +20,7 @@ use ratatui::crossterm::{cursor, execute};
 use signal_hook::consts::{SIGHUP, SIGINT, SIGTERM};
 use signal_hook::iterator::Signals;
 
+use crate::app::worker::Worker;
 use crate::app::{Key, Msg};
 
 /// The dashboard's terminal.
@@ -112,17 +111,12 @@ pub fn map_key(code: KeyCode, modifiers: KeyModifiers) -> Key {
 }
 
 /// Reads keys and resizes on its own thread until stopped.
-pub struct Input {
-    stop: Arc<AtomicBool>,
-    handle: Option<JoinHandle<()>>,
-}
+pub struct Input(Worker);
 
 impl Input {
     /// Start reading the terminal's events into `tx`.
     pub fn spawn(tx: SyncSender<Msg>) -> Self {
-        let stop = Arc::new(AtomicBool::new(false));
-        let flag = Arc::clone(&stop);
-        let handle = std::thread::spawn(move || {
+        Self(Worker::spawn(move |flag| {
             while !flag.load(Ordering::Relaxed) {
                 match event::poll(Duration::from_millis(100)) {
                     Ok(false) => continue,
@@ -141,19 +135,12 @@ impl Input {
                     break;
                 }
             }
-        });
-        Self {
-            stop,
-            handle: Some(handle),
-        }
+        }))
     }
 
     /// Stop reading and wait for the thread (at most one poll period).
-    pub fn stop(mut self) {
-        self.stop.store(true, Ordering::Relaxed);
-        if let Some(h) = self.handle.take() {
-            let _ = h.join();
-        }
+    pub fn stop(self) {
+        self.0.stop();
     }
 }
 

@@ -10,6 +10,7 @@ pub mod run;
 pub mod speed;
 pub mod state;
 pub mod update;
+pub mod worker;
 
 pub use batch::{Batch, Item};
 pub use state::{AppState, Config, Dialog, Event, StopState, View};

@@ -4,10 +4,8 @@
 //! so a fast file never drives the frame rate and an idle run costs no frames.
 //! Effects go to the armed stop actions through [`StopActions`].
 
-use std::sync::Arc;
-use std::sync::atomic::{AtomicBool, Ordering};
+use std::sync::atomic::Ordering;
 use std::sync::mpsc::{Receiver, RecvTimeoutError, SyncSender};
-use std::thread::JoinHandle;
 use std::time::{Duration, Instant};
 
 use ratatui::Terminal;
@@ -15,6 +13,7 @@ use ratatui::backend::Backend;
 
 use crate::alarm::Alarm;
 
+use super::worker::Worker;
 use super::{AppState, Effect, Msg};
 
 /// Longest sleep when nothing is pending, so armed actions are advanced.
@@ -137,17 +136,12 @@ fn apply(state: &mut AppState, actions: &mut dyn StopActions, fx: Vec<Effect>) {
 }
 
 /// Sends [`Msg::Tick`] with monotonic seconds since `t0` every `every`.
-pub struct Ticker {
-    stop: Arc<AtomicBool>,
-    handle: Option<JoinHandle<()>>,
-}
+pub struct Ticker(Worker);
 
 impl Ticker {
     /// Start ticking into `tx`.
     pub fn spawn(tx: SyncSender<Msg>, t0: Instant, every: Duration) -> Self {
-        let stop = Arc::new(AtomicBool::new(false));
-        let flag = Arc::clone(&stop);
-        let handle = std::thread::spawn(move || {
+        Self(Worker::spawn(move |flag| {
             let step = Duration::from_millis(50).min(every);
             let mut next = Instant::now() + every;
             while !flag.load(Ordering::Relaxed) {
@@ -160,19 +154,12 @@ impl Ticker {
                     }
                 }
             }
-        });
-        Self {
-            stop,
-            handle: Some(handle),
-        }
+        }))
     }
 
     /// Stop and wait for the thread.
-    pub fn stop(mut self) {
-        self.stop.store(true, Ordering::Relaxed);
-        if let Some(h) = self.handle.take() {
-            let _ = h.join();
-        }
+    pub fn stop(self) {
+        self.0.stop();
     }
 }
 
