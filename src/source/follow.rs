@@ -24,6 +24,8 @@ use super::{Event, RestartReason, Source, strip_nul};
 const HEAD_BYTES: usize = 512;
 /// Bytes before the offset kept to recognise the same content under a new inode.
 const TAIL_BYTES: usize = 64;
+/// Smallest read; reads double while they come back full, up to the chunk size.
+const MIN_READ_BYTES: usize = 4096;
 
 /// How a [`Follower`] polls.
 #[derive(Debug, Clone, PartialEq)]
@@ -62,7 +64,9 @@ pub struct Follower {
     last_check: Option<Instant>,
     pending: VecDeque<Event>,
     hint: Option<Hint>,
-    buf: Vec<u8>,
+    /// Size of the next read: about twice the last one, so that steady
+    /// appends take small reads and a backlog quickly gets whole chunks.
+    next_read: usize,
 }
 
 impl Follower {
@@ -85,7 +89,7 @@ impl Follower {
             last_check: None,
             pending: VecDeque::new(),
             hint,
-            buf: Vec::new(),
+            next_read: MIN_READ_BYTES,
         }
     }
 
@@ -102,6 +106,13 @@ impl Follower {
     /// True when kernel notifications are in use as a wake-up hint.
     pub fn notified(&self) -> bool {
         self.hint.is_some()
+    }
+
+    /// Tell the follower that something may have happened to its name (a
+    /// notification seen by someone else): the next poll that finds no new
+    /// bytes opens the name afresh instead of waiting for the periodic check.
+    pub fn nudge(&mut self) {
+        self.hinted = true;
     }
 
     fn periodic_check_due(&self) -> bool {
@@ -205,13 +216,21 @@ impl Follower {
         let Some(file) = self.file.as_ref() else {
             return Ok(None);
         };
-        self.buf.resize(self.cfg.chunk_bytes.max(1), 0);
+        // A fresh buffer, handed on as the event's bytes: no copy, and no
+        // buffer per follower left idle between polls (a fleet has hundreds).
+        let want = self.next_read.min(self.cfg.chunk_bytes).max(1);
+        let mut buf = vec![0u8; want];
         let n = loop {
-            match file.read_at(&mut self.buf, self.offset) {
+            match file.read_at(&mut buf, self.offset) {
                 Ok(n) => break n,
                 Err(e) if e.kind() == io::ErrorKind::Interrupted => {}
                 Err(e) => return Err(e),
             }
+        };
+        self.next_read = if n == want {
+            want.saturating_mul(2)
+        } else {
+            n.saturating_mul(2).max(MIN_READ_BYTES)
         };
         if n == 0 {
             // At the end: a size below the offset means truncation in place.
@@ -224,7 +243,8 @@ impl Follower {
             }
             return Ok(None);
         }
-        let data = &self.buf[..n];
+        buf.truncate(n);
+        let data = &buf[..];
         if self.head.len() < HEAD_BYTES && self.offset == self.head.len() as u64 {
             let take = (HEAD_BYTES - self.head.len()).min(n);
             self.head.extend_from_slice(&data[..take]);
@@ -238,7 +258,7 @@ impl Follower {
             self.tail.drain(..excess);
         }
         self.offset += n as u64;
-        Ok(Some(strip_nul(data.to_vec())))
+        Ok(Some(strip_nul(buf)))
     }
 }
 

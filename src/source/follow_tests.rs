@@ -245,3 +245,28 @@ fn a_writer_thread_is_followed_to_the_last_byte_with_notifications() {
     }
     assert_eq!(got, writer.join().unwrap());
 }
+
+#[test]
+fn a_nudge_reopens_the_name_before_the_periodic_check() {
+    let dir = tempfile::tempdir().unwrap();
+    let p = dir.path().join("run.csv");
+    append(&p, b"t,e\n0,1\n");
+    let slow = FollowConfig {
+        poll_interval: Duration::from_secs(3600),
+        ..cfg()
+    };
+    let mut f = Follower::new(&p, slow);
+    drain(&mut f);
+    let tmp = dir.path().join("run.tmp");
+    fs::write(&tmp, b"t,e\n5,6\n").unwrap();
+    fs::rename(&tmp, &p).unwrap();
+    assert!(
+        drain(&mut f).is_empty(),
+        "without a hint the old file is held until the periodic check"
+    );
+    f.nudge();
+    assert_eq!(
+        drain(&mut f),
+        vec![Event::Restart(RestartReason::Replaced), data(b"t,e\n5,6\n")]
+    );
+}
