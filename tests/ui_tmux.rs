@@ -7,112 +7,12 @@
 use std::io::Write;
 use std::path::{Path, PathBuf};
 use std::process::Command;
-use std::time::{Duration, Instant};
 
-struct Tmux {
-    socket: String,
-}
-
-impl Tmux {
-    fn start(tag: &str, cols: u16, rows: u16, cmd: &str) -> Tmux {
-        let t = Tmux {
-            socket: format!("rhoscope-test-{}-{tag}", std::process::id()),
-        };
-        let ok = Command::new("tmux")
-            .args([
-                "-L",
-                &t.socket,
-                "-f",
-                "/dev/null",
-                "new-session",
-                "-d",
-                "-s",
-                "w",
-            ])
-            .args(["-x", &cols.to_string(), "-y", &rows.to_string()])
-            .arg(cmd)
-            .env_remove("NO_COLOR")
-            .status()
-            .expect("tmux must be installed (.ci/run installs it)");
-        assert!(ok.success());
-        t
-    }
-
-    fn screen(&self) -> String {
-        let out = Command::new("tmux")
-            .args(["-L", &self.socket, "capture-pane", "-p", "-t", "w"])
-            .output()
-            .expect("tmux capture-pane");
-        String::from_utf8_lossy(&out.stdout).into_owned()
-    }
-
-    fn keys(&self, keys: &[&str]) {
-        let ok = Command::new("tmux")
-            .args(["-L", &self.socket, "send-keys", "-t", "w"])
-            .args(keys)
-            .status()
-            .expect("tmux send-keys");
-        assert!(ok.success());
-    }
-
-    fn alive(&self) -> bool {
-        Command::new("tmux")
-            .args(["-L", &self.socket, "has-session", "-t", "w"])
-            .status()
-            .map(|s| s.success())
-            .unwrap_or(false)
-    }
-
-    /// Wait until the screen satisfies `want`; panics with the screen otherwise.
-    fn wait_for(&self, what: &str, want: impl Fn(&str) -> bool) -> String {
-        let deadline = Instant::now() + Duration::from_secs(20);
-        loop {
-            let s = self.screen();
-            if want(&s) {
-                return s;
-            }
-            if Instant::now() > deadline {
-                panic!("timed out waiting for {what}; screen:\n{s}");
-            }
-            std::thread::sleep(Duration::from_millis(100));
-        }
-    }
-}
-
-impl Drop for Tmux {
-    fn drop(&mut self) {
-        let _ = Command::new("tmux")
-            .args(["-L", &self.socket, "kill-server"])
-            .status();
-    }
-}
-
-fn skip() -> bool {
-    std::env::var_os("RHOSCOPE_SKIP_TMUX").is_some_and(|v| v == "1")
-}
-
-/// An invented history: a two-mass oscillator, healthy, `rows` rows from `from`.
-fn rows_text(from: u32, rows: u32) -> String {
-    let mut s = String::new();
-    for i in from..from + rows {
-        let t = f64::from(i) * 1e-4;
-        let c = (2.0 * std::f64::consts::PI * 40.0 * t).cos();
-        s.push_str(&format!(
-            "{t:.6e},1.0e-4,{i},{:.6e},{:.6e},1.0,{:.6e}\n",
-            0.5 * (1.0 + c),
-            0.5 * (1.0 - c),
-            1e-3 * c
-        ));
-    }
-    s
-}
+use crate::tmux_support::{Tmux, rows_text, skip, write_history};
 
 fn history(dir: &Path) -> PathBuf {
     let p = dir.join("history.csv");
-    let mut text =
-        String::from("time,dt,step,kinetic_energy,internal_energy,external_work,disp_tip\n");
-    text.push_str(&rows_text(0, 600));
-    std::fs::write(&p, text).unwrap();
+    write_history(&p, 600);
     p
 }
 
