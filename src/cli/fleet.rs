@@ -6,6 +6,7 @@ use std::time::Duration;
 use clap::Args;
 
 use super::actions::parse_duration;
+use super::follow::FollowArgs;
 use super::input::InputArgs;
 
 const FLEET_EXAMPLES: &str = "\
@@ -42,16 +43,11 @@ pub struct FleetArgs {
     /// A run whose history has not grown for this long is flagged as stalled.
     #[arg(long, value_name = "DURATION", value_parser = parse_duration, default_value = "10m")]
     pub stall_after: Duration,
-    /// Period of each file's poll; polls are spread evenly over it. On parallel
-    /// filesystems keep it at a few seconds.
-    #[arg(long, value_name = "DURATION", value_parser = parse_duration, default_value = "3s")]
-    pub poll: Duration,
     /// Period of the search for new files matching the patterns.
     #[arg(long, value_name = "DURATION", value_parser = parse_duration, default_value = "10s")]
     pub rescan: Duration,
-    /// Do not use kernel notifications as a wake-up hint (poll only).
-    #[arg(long)]
-    pub no_notify: bool,
+    #[command(flatten)]
+    pub follow: FollowArgs,
     /// Write the runs' state to this file in the Prometheus text format,
     /// atomically (temporary file, then rename), every --every.
     #[arg(long, value_name = "FILE")]

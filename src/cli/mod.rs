@@ -6,6 +6,7 @@ pub mod columns;
 pub mod demo;
 pub mod evaluate;
 pub mod fleet;
+pub mod follow;
 pub mod guard;
 pub mod input;
 pub mod limits;

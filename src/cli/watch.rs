@@ -6,6 +6,7 @@ use std::time::Duration;
 use clap::Args;
 
 use super::actions::{ActionArgs, parse_duration};
+use super::follow::FollowArgs;
 use super::input::InputArgs;
 
 const WATCH_EXAMPLES: &str = "\
@@ -62,12 +63,8 @@ pub struct WatchArgs {
     pub by_key_only: bool,
     #[command(flatten)]
     pub input: InputArgs,
-    /// Period of the size/identity check, with a fresh open of the file.
-    #[arg(long, value_name = "DURATION", value_parser = parse_duration, default_value = "1s")]
-    pub poll: Duration,
-    /// Do not use kernel notifications as a wake-up hint (poll only).
-    #[arg(long)]
-    pub no_notify: bool,
+    #[command(flatten)]
+    pub follow: FollowArgs,
     /// Append every alarm and action to this file, as JSON Lines.
     #[arg(long, value_name = "FILE")]
     pub events: Option<PathBuf>,

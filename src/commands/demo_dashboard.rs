@@ -13,6 +13,7 @@ use std::time::{Duration, Instant};
 use anyhow::{Context, bail};
 
 use crate::cli::actions::ActionArgs;
+use crate::cli::follow::FollowArgs;
 use crate::cli::guard::GuardArgs;
 use crate::cli::input::InputArgs;
 use crate::cli::watch::WatchArgs;
@@ -121,8 +122,10 @@ pub fn run(headless: bool) -> anyhow::Result<i32> {
             actions,
             input,
             idle_exit: Some(IDLE_EXIT),
-            poll: Duration::from_millis(200),
-            no_notify: false,
+            follow: FollowArgs {
+                poll: Some(Duration::from_millis(200)),
+                no_notify: false,
+            },
             events: None,
             quiet: false,
         })
@@ -134,8 +137,10 @@ pub fn run(headless: bool) -> anyhow::Result<i32> {
             actions,
             by_key_only: false,
             input,
-            poll: Duration::from_millis(200),
-            no_notify: false,
+            follow: FollowArgs {
+                poll: Some(Duration::from_millis(200)),
+                no_notify: false,
+            },
             events: Some(dir.join("events.jsonl")),
             fps: 10,
             retention_rows: crate::history::DEFAULT_RETENTION_ROWS,

@@ -10,6 +10,7 @@ use std::time::{Duration, Instant};
 use anyhow::{Context as _, bail};
 
 use crate::cli::fleet::FleetArgs;
+use crate::cli::follow::POLL_FLEET_DEFAULT;
 use crate::fleet::{Fleet, FleetConfig, RunRow, RunState, worst_first};
 use crate::metrics::{self, Context};
 use crate::ui::format;
@@ -74,8 +75,8 @@ pub fn run(args: FleetArgs) -> anyhow::Result<i32> {
     };
     let t0 = Instant::now();
     let cfg = FleetConfig {
-        poll_interval: args.poll,
-        notify: !args.no_notify && !args.once,
+        poll_interval: args.follow.poll_or(POLL_FLEET_DEFAULT),
+        notify: !args.follow.no_notify && !args.once,
         rescan_interval: args.rescan,
         ..FleetConfig::default()
     };

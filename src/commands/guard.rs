@@ -12,6 +12,7 @@ use crate::act::{
 };
 use crate::act::{End, Escalation};
 use crate::cli::actions::{ActionArgs, parse_duration};
+use crate::cli::follow::POLL_DEFAULT;
 use crate::cli::guard::GuardArgs;
 use crate::pipeline::Pipeline;
 use crate::settings::Settings;
@@ -146,11 +147,12 @@ pub fn run(args: GuardArgs) -> anyhow::Result<i32> {
         .iter()
         .map(ActionSpec::describe)
         .collect();
+    let poll = args.follow.poll_or(POLL_DEFAULT);
     let mut follower = Follower::new(
         &args.file,
         FollowConfig {
-            poll_interval: args.poll,
-            notify: !args.no_notify,
+            poll_interval: poll,
+            notify: !args.follow.no_notify,
             ..FollowConfig::default()
         },
     );
@@ -175,7 +177,7 @@ pub fn run(args: GuardArgs) -> anyhow::Result<i32> {
                 }
             )
         },
-        args.poll,
+        poll,
         if follower.notified() {
             ", woken early by notifications"
         } else {
@@ -189,7 +191,7 @@ pub fn run(args: GuardArgs) -> anyhow::Result<i32> {
     let opts = SuperviseOptions {
         idle_exit: args.idle_exit,
         pid,
-        max_wait: args.poll.min(Duration::from_millis(250)),
+        max_wait: poll.min(Duration::from_millis(250)),
     };
     let out = supervise(
         &mut follower,

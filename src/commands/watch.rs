@@ -15,6 +15,7 @@ use crate::alarm::{Alarm, Level};
 use crate::app::feed::Feed;
 use crate::app::run::{Pacing, StopActions, Ticker};
 use crate::app::{AppState, Config, StopState};
+use crate::cli::follow::POLL_DEFAULT;
 use crate::cli::watch::WatchArgs;
 use crate::commands::guard::escalation_from_args;
 use crate::settings::Settings;
@@ -188,11 +189,12 @@ fn watch(
     let signals = tui::spawn_signals(tx.clone()).context("cannot listen for signals")?;
     let input = tui::Input::spawn(tx.clone());
     let ticker = Ticker::spawn(tx.clone(), t0, Duration::from_secs(1));
+    let poll = args.follow.poll_or(POLL_DEFAULT);
     let follower = Follower::new(
         args.file.clone(),
         FollowConfig {
-            poll_interval: args.poll,
-            notify: !args.no_notify,
+            poll_interval: poll,
+            notify: !args.follow.no_notify,
             ..FollowConfig::default()
         },
     );
@@ -202,7 +204,7 @@ fn watch(
         settings,
         tx,
         t0,
-        args.poll.min(Duration::from_millis(500)),
+        poll.min(Duration::from_millis(500)),
         Box::new(move |a| {
             if let Ok(mut l) = alarm_log.lock() {
                 l.alarm(a);

@@ -15,6 +15,7 @@ use anyhow::{Context, bail};
 
 use crate::app::fleet::{FleetEffect, FleetView};
 use crate::app::update::Msg;
+use crate::cli::follow::POLL_DEFAULT;
 use crate::cli::watch::WatchArgs;
 use crate::fleet::{Fleet, FleetConfig, RunRow};
 use crate::tui;
@@ -78,8 +79,11 @@ pub fn run(args: WatchArgs) -> anyhow::Result<i32> {
     patterns.extend(args.more.iter().map(|p| p.to_string_lossy().into_owned()));
     let t0 = Instant::now();
     let cfg = FleetConfig {
-        poll_interval: args.poll.max(Duration::from_secs(1)),
-        notify: !args.no_notify,
+        poll_interval: args
+            .follow
+            .poll_or(POLL_DEFAULT)
+            .max(Duration::from_secs(1)),
+        notify: !args.follow.no_notify,
         ..FleetConfig::default()
     };
     let fleet = Fleet::new(patterns.clone(), args.input.clone(), cfg, t0);
