@@ -150,10 +150,17 @@ fn main() {
     let (rss, peak) = rss_mb();
     let wall = (w1 - w0).as_secs_f64();
     let now_s = fleet.secs(Instant::now());
-    let crit = fleet
-        .rows()
-        .filter(|r| r.state(now_s, 600.0) == RunState::Critical)
-        .count();
+    let count = |want: RunState| {
+        fleet
+            .rows()
+            .filter(|r| r.state(now_s, 600.0) == want)
+            .count()
+    };
+    let (crit, warn, healthy) = (
+        count(RunState::Critical),
+        count(RunState::Warning),
+        count(RunState::Healthy),
+    );
     println!(
         "fleet: {} runs x {rate} lines/s, poll {:?}, notifications {}",
         fleet.len(),
@@ -169,5 +176,8 @@ fn main() {
         "  CPU {:.2} % of one core; memory {rss:.1} MB resident, peak {peak:.1} MB",
         100.0 * (c1 - c0) / wall
     );
-    println!("  runs critical at the end: {crit} (every 50th run grows by design)");
+    println!(
+        "  at the end: {crit} critical, {warn} warning, {healthy} healthy \
+         (every 50th run grows by design)"
+    );
 }
