@@ -1,7 +1,9 @@
 //! State of the fleet view: the latest rows of every followed run in
-//! worst-first order, which run is selected (kept on the same run while the
-//! order changes), and what a key asks for — move, open the selected run's
-//! dashboard, quit. No terminal, no clock, no files.
+//! worst-first order, which run is selected, and what a key asks for — move,
+//! open the selected run's dashboard, quit. Until a key moves it the selection
+//! stays on the top row, so the worst runs stay in sight however the order
+//! changes; once moved it is kept on the same run (g puts it back on top).
+//! No terminal, no clock, no files.
 
 use std::path::PathBuf;
 
@@ -29,6 +31,8 @@ pub struct FleetView {
     pub selected: usize,
     /// Path of the selected run, to keep the selection through re-sorting.
     selected_path: Option<PathBuf>,
+    /// The selection stays on the top row (nothing moved it yet, or g).
+    on_top: bool,
     /// Monotonic seconds of the latest snapshot.
     pub now_s: f64,
     /// Seconds without output after which a run is stalled.
@@ -52,6 +56,7 @@ impl FleetView {
             rows: Vec::new(),
             selected: 0,
             selected_path: None,
+            on_top: true,
             now_s: 0.0,
             stall_after_s,
             end_time_s,
@@ -73,11 +78,14 @@ impl FleetView {
         let mut slots: Vec<Option<RunRow>> = rows.into_iter().map(Some).collect();
         self.rows = order.into_iter().filter_map(|i| slots[i].take()).collect();
         self.now_s = now_s;
-        self.selected = self
-            .selected_path
-            .as_ref()
-            .and_then(|p| self.rows.iter().position(|r| &r.path == p))
-            .unwrap_or(self.selected.min(self.rows.len().saturating_sub(1)));
+        self.selected = if self.on_top {
+            0
+        } else {
+            self.selected_path
+                .as_ref()
+                .and_then(|p| self.rows.iter().position(|r| &r.path == p))
+                .unwrap_or(self.selected.min(self.rows.len().saturating_sub(1)))
+        };
         self.remember();
         self.dirty = true;
     }
@@ -104,11 +112,17 @@ impl FleetView {
     pub fn key(&mut self, k: Key) -> FleetEffect {
         self.dirty = true;
         let last = self.rows.len().saturating_sub(1);
+        if matches!(k, Key::Char('j' | 'k' | 'G') | Key::Tab | Key::BackTab) {
+            self.on_top = false;
+        }
         match k {
             Key::Char('q') | Key::Interrupt => return FleetEffect::Quit,
             Key::Char('j') | Key::Tab => self.selected = (self.selected + 1).min(last),
             Key::Char('k') | Key::BackTab => self.selected = self.selected.saturating_sub(1),
-            Key::Char('g') => self.selected = 0,
+            Key::Char('g') => {
+                self.selected = 0;
+                self.on_top = true;
+            }
             Key::Char('G') => self.selected = last,
             Key::Enter => {
                 if let Some(r) = self.rows.get(self.selected) {
@@ -171,6 +185,39 @@ mod tests {
             v.tally(),
             vec![(RunState::Critical, 1), (RunState::Warning, 1)]
         );
+    }
+
+    #[test]
+    fn until_a_key_moves_it_the_selection_stays_on_the_worst_run() {
+        let mut v = FleetView::new("runs/*".into(), 600.0, None, false);
+        v.set_rows(vec![row("a", Level::Ok), row("b", Level::Ok)], 1.0);
+        assert_eq!(v.rows[v.selected].name, "a");
+        // "b" turns critical: the top row, and so the selection, is now "b".
+        v.set_rows(vec![row("a", Level::Ok), row("b", Level::Critical)], 2.0);
+        assert_eq!((v.selected, v.rows[0].name.as_str()), (0, "b"));
+        assert_eq!(
+            v.key(Key::Enter),
+            FleetEffect::Open(PathBuf::from("b/h.csv"))
+        );
+        // Once moved, the selection stays with its run; g puts it back on top.
+        v.key(Key::Char('j'));
+        v.set_rows(
+            vec![row("a", Level::Warning), row("b", Level::Critical)],
+            3.0,
+        );
+        assert_eq!(v.rows[v.selected].name, "a");
+        v.set_rows(
+            vec![row("a", Level::Critical), row("b", Level::Warning)],
+            4.0,
+        );
+        assert_eq!((v.selected, v.rows[v.selected].name.as_str()), (0, "a"));
+        v.key(Key::Char('j'));
+        v.key(Key::Char('g'));
+        v.set_rows(
+            vec![row("a", Level::Warning), row("b", Level::Critical)],
+            5.0,
+        );
+        assert_eq!((v.selected, v.rows[0].name.as_str()), (0, "b"));
     }
 
     #[test]

@@ -9,9 +9,10 @@ use clap::Args;
 
 use super::actions::parse_duration;
 
-/// Poll period of `guard` and `watch` when `--poll` is not given.
+/// Poll period of `guard` and `watch` on one file when `--poll` is not given.
 pub const POLL_DEFAULT: Duration = Duration::from_secs(1);
-/// Poll period of `rhoscope fleet` when `--poll` is not given.
+/// Poll period of each file of a fleet (`watch` on several files or a
+/// pattern, and `rhoscope fleet`) when `--poll` is not given.
 pub const POLL_FLEET_DEFAULT: Duration = Duration::from_secs(3);
 
 /// How growing files are followed.
@@ -19,8 +20,8 @@ pub const POLL_FLEET_DEFAULT: Duration = Duration::from_secs(3);
 pub struct FollowArgs {
     /// Period of each file's full check: size and identity, with a fresh open
     /// of the file. With many files the checks are spread evenly over it; on
-    /// parallel filesystems keep it at a few seconds [default: 1s; 3s for
-    /// `rhoscope fleet`].
+    /// parallel filesystems keep it at a few seconds [default: 1s for one
+    /// file; 3s for several, as in the fleet view and `rhoscope fleet`].
     #[arg(long, value_name = "DURATION", value_parser = parse_duration)]
     pub poll: Option<Duration>,
     /// Do not use kernel notifications as a wake-up hint (poll only).

@@ -15,7 +15,7 @@ use anyhow::{Context, bail};
 
 use crate::app::fleet::{FleetEffect, FleetView};
 use crate::app::update::Msg;
-use crate::cli::follow::POLL_DEFAULT;
+use crate::cli::follow::POLL_FLEET_DEFAULT;
 use crate::cli::watch::WatchArgs;
 use crate::fleet::{Fleet, FleetConfig, RunRow};
 use crate::tui;
@@ -81,7 +81,7 @@ pub fn run(args: WatchArgs) -> anyhow::Result<i32> {
     let cfg = FleetConfig {
         poll_interval: args
             .follow
-            .poll_or(POLL_DEFAULT)
+            .poll_or(POLL_FLEET_DEFAULT)
             .max(Duration::from_secs(1)),
         notify: !args.follow.no_notify,
         ..FleetConfig::default()
