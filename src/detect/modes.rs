@@ -12,6 +12,8 @@ use crate::schemes::fit;
 
 /// Target dimension of the delay-embedded snapshot (channels × delays).
 pub const EMBED_DIM: usize = 12;
+/// Fewest rows a fit accepts.
+pub const MIN_FIT_ROWS: usize = 16;
 /// At most this many channels; more columns are mixed down.
 pub const MAX_CHANNELS: usize = 3;
 /// A growing mode must grow at least this much over the window.
@@ -38,23 +40,42 @@ pub struct ChannelMap {
     pub q: usize,
     /// Delays.
     pub d: usize,
+    /// Weights w_cj/scale_j, column-major (q per active column); empty when
+    /// each active column is its own channel.
+    gains: Vec<f64>,
 }
 
 impl ChannelMap {
+    /// The map for these active columns, `q` channels and `d` delays.
+    pub fn new(cols: Vec<(usize, f64, f64)>, q: usize, d: usize) -> Self {
+        debug_assert!(q == cols.len().min(MAX_CHANNELS));
+        let gains = if cols.len() <= MAX_CHANNELS {
+            Vec::new()
+        } else {
+            cols.iter()
+                .flat_map(|&(j, _, inv)| (0..q).map(move |c| weight(c, j) * inv))
+                .collect()
+        };
+        Self { cols, q, d, gains }
+    }
+
     /// Channel values of one row (`row` holds all window columns).
     pub fn channels(&self, row: &[f64], out: &mut [f64]) {
-        out.iter_mut().for_each(|v| *v = 0.0);
-        let direct = self.cols.len() <= MAX_CHANNELS;
-        for (k, &(j, mean, inv)) in self.cols.iter().enumerate() {
-            let z = (row[j] - mean) * inv;
-            if direct {
-                out[k] = z;
-            } else {
-                for (c, o) in out.iter_mut().enumerate().take(self.q) {
-                    *o += weight(c, j) * z;
-                }
+        if self.gains.is_empty() {
+            for (o, &(j, mean, inv)) in out.iter_mut().zip(&self.cols) {
+                *o = (row[j] - mean) * inv;
+            }
+            return;
+        }
+        // Mixed down to exactly MAX_CHANNELS: sums kept in registers.
+        let mut acc = [0.0; MAX_CHANNELS];
+        for (g, &(j, mean, _)) in self.gains.chunks_exact(MAX_CHANNELS).zip(&self.cols) {
+            let x = row[j] - mean;
+            for (a, w) in acc.iter_mut().zip(g) {
+                *a += w * x;
             }
         }
+        out[..MAX_CHANNELS].copy_from_slice(&acc);
     }
 }
 
@@ -88,49 +109,59 @@ pub struct Analysis {
 
 /// Fit a window: `rows` is row-major, `n` rows of `m` values, oldest first.
 pub fn analyse(rows: &[f64], n: usize, m: usize) -> Option<Analysis> {
-    if n < 2 * EMBED_DIM || m == 0 || rows.len() < n * m {
+    if n < MIN_FIT_ROWS || m == 0 || rows.len() < n * m {
         return None;
     }
+    // Column means and standard deviations, row by row (two passes).
+    let rows = &rows[..n * m];
+    let mut mean = vec![0.0; m];
+    for row in rows.chunks_exact(m) {
+        mean.iter_mut().zip(row).for_each(|(a, v)| *a += v);
+    }
+    mean.iter_mut().for_each(|a| *a /= n as f64);
+    let mut var = vec![0.0; m];
+    for row in rows.chunks_exact(m) {
+        for ((a, v), mu) in var.iter_mut().zip(row).zip(&mean) {
+            *a += (v - mu) * (v - mu);
+        }
+    }
     let mut cols = Vec::new();
-    for j in 0..m {
-        let col = (0..n).map(|i| rows[i * m + j]);
-        let mean = col.clone().sum::<f64>() / n as f64;
-        let var = col.map(|v| (v - mean) * (v - mean)).sum::<f64>() / n as f64;
-        let sd = var.sqrt();
+    for (j, (&mu, &ss)) in mean.iter().zip(&var).enumerate() {
+        let sd = (ss / n as f64).sqrt();
         // Constant (or rounding-only) columns carry no dynamics.
-        if sd.is_finite() && sd > 0.0 && sd > 1e-13 * mean.abs() {
-            cols.push((j, mean, 1.0 / sd));
+        if sd.is_finite() && sd > 0.0 && sd > 1e-13 * mu.abs() {
+            cols.push((j, mu, 1.0 / sd));
         }
     }
     if cols.is_empty() {
         return None;
     }
     let q = cols.len().min(MAX_CHANNELS);
-    let d = EMBED_DIM.div_ceil(q).max(2);
-    let map = ChannelMap { cols, q, d };
+    // Short windows get fewer delays, so that the fit keeps at least three
+    // snapshots per dimension of the embedding.
+    let d = EMBED_DIM.div_ceil(q).min(n / (3 * q)).max(2);
+    let map = ChannelMap::new(cols, q, d);
     let mut y = vec![0.0; n * q];
     for i in 0..n {
         map.channels(&rows[i * m..(i + 1) * m], &mut y[i * q..(i + 1) * q]);
     }
     let dim = q * d;
     let snaps = n - d + 1;
-    // Snapshot t holds [y_t; y_{t−1}; …; y_{t−d+1}].
-    let h = DMatrix::from_fn(dim, snaps, |r, s| {
-        let (lag, c) = (r / q, r % q);
-        y[(s + d - 1 - lag) * q + c]
-    });
+    // Snapshot t holds [y_t; y_{t−1}; …; y_{t−d+1}] (one column, contiguous).
+    let mut hv = Vec::with_capacity(dim * snaps);
+    for t in d - 1..n {
+        for lag in 0..d {
+            hv.extend_from_slice(&y[(t - lag) * q..(t - lag + 1) * q]);
+        }
+    }
+    let h = DMatrix::from_vec(dim, snaps, hv);
     let f = fit::dmd(&h)?;
     let u_top = f.basis.rows(0, q);
     let predictor = u_top * &f.reduced * f.basis.transpose();
     let signal_rms = (y.iter().map(|v| v * v).sum::<f64>() / y.len() as f64).sqrt();
-    let mut misfit = 0.0;
-    for s in 0..snaps - 1 {
-        let p = &predictor * h.column(s);
-        for c in 0..q {
-            let e = h[(c, s + 1)] - p[c];
-            misfit += e * e;
-        }
-    }
+    // One-step misfit of the newest channel values over the window.
+    let predicted = &predictor * h.columns(0, snaps - 1);
+    let misfit = (h.view((0, 1), (q, snaps - 1)) - predicted).norm_squared();
     let misfit_rms = (misfit / ((snaps - 1) * q) as f64).sqrt();
     let spectral_radius = f.eigenvalues.iter().map(|e| e.norm()).fold(0.0, f64::max);
     let growing = strongest_growing(&f, &h);

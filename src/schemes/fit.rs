@@ -43,8 +43,6 @@ pub struct DmdFit {
     pub reduced: DMatrix<f64>,
     /// Basis U_r of the kept subspace (dimension × rank).
     pub basis: DMatrix<f64>,
-    /// In-sample one-step residual ‖Y − U Ã Uᵀ X‖ / ‖Y‖ (Frobenius).
-    pub residual: f64,
 }
 
 /// Gavish–Donoho ω(β) ≈ 0.56β³ − 0.95β² + 1.82β + 1.43 for unknown noise
@@ -96,36 +94,41 @@ pub fn dmd(h: &DMatrix<f64>) -> Option<DmdFit> {
     if dim == 0 || n < 3 || h.iter().any(|v| !v.is_finite()) {
         return None;
     }
-    let x = h.columns(0, n - 1).into_owned();
+    let x = h.columns(0, n - 1);
     let y = h.columns(1, n - 1);
-    let svd = SVD::try_new(x, true, true, f64::EPSILON, SVD_MAX_ITER)?;
+    // With many more snapshots than dimensions, X = Rᵀ Qᵀ from a Householder
+    // QR of Xᵀ, and the SVD is taken of the small Rᵀ = U Σ Wᵀ, so that
+    // V = Q W and Y V = (Y Q) W. The long right factor never enters the
+    // SVD's iterations (Golub & Van Loan, Matrix Computations, 4th ed., §8.6.3,
+    // R-bidiagonalization), which is where a wide SVD spends its time.
+    let (svd, yv) = if n - 1 > 2 * dim {
+        let qr = x.transpose().qr();
+        let q = qr.q();
+        let svd = SVD::try_new(qr.r().transpose(), true, true, f64::EPSILON, SVD_MAX_ITER)?;
+        let yv = (y * q) * svd.v_t.as_ref()?.transpose();
+        (svd, yv)
+    } else {
+        let svd = SVD::try_new(x.into_owned(), true, true, f64::EPSILON, SVD_MAX_ITER)?;
+        let yv = y * svd.v_t.as_ref()?.transpose();
+        (svd, yv)
+    };
     let s: Vec<f64> = svd.singular_values.iter().copied().collect();
     let r = select_rank(&s, dim, n - 1);
     if r == 0 {
         return None;
     }
     let u = svd.u.as_ref()?.columns(0, r).into_owned();
-    let v_t = svd.v_t.as_ref()?.rows(0, r).into_owned();
     let inv_s = DMatrix::from_diagonal(&DVector::from_iterator(r, s[..r].iter().map(|v| 1.0 / v)));
     // Ã = Uᵀ Y V Σ⁻¹  (Schmid 2010, eq. 2.10 form)
-    let reduced = u.transpose() * y * v_t.transpose() * inv_s;
+    let reduced = u.transpose() * yv.columns(0, r) * inv_s;
     let schur = Schur::try_new(reduced.clone(), f64::EPSILON, SCHUR_ITER_PER_DIM * r.max(4))?;
     let eigenvalues: Vec<Complex<f64>> = schur.complex_eigenvalues().iter().copied().collect();
-    let ut_x = u.transpose() * h.columns(0, n - 1);
-    let pred = &u * (&reduced * ut_x);
-    let y_norm = y.norm();
-    let residual = if y_norm > 0.0 {
-        (y - pred).norm() / y_norm
-    } else {
-        0.0
-    };
     Some(DmdFit {
         eigenvalues,
         rank: r,
         singular_values: s,
         reduced,
         basis: u,
-        residual,
     })
 }
 
