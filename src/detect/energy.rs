@@ -5,18 +5,18 @@
 //! into the model. A linear or decelerating drift stays a warning.
 
 use super::balance::{BalanceReading, EnergyBalance, term_name};
-use super::clock::Clock;
-use super::{DetectSettings, Detector, Evidence, Finding, Sample, forecast};
+use super::{DetectSettings, Detector, Evidence, Finding, Sample, Shared, forecast};
 use crate::alarm::Level;
-use crate::parse::roles::RoleMap;
 
 /// Rows the error must stay beyond the threshold before a warning (persistence).
 const PERSIST_ROWS: u32 = 3;
 /// A raised warning clears once the error is back under this fraction of the
 /// threshold (hysteresis) for `PERSIST_ROWS` rows.
 const CLEAR_FRACTION: f64 = 0.8;
-/// Window lengths (rows) over which exponential growth of the error is tested.
-const EXP_WINDOWS: [usize; 3] = [32, 128, 512];
+/// Window lengths (rows) over which exponential growth of the error is tested:
+/// a geometric ladder, so that a slow instability is judged on a window about
+/// as long as it takes to grow a decade.
+const EXP_WINDOWS: [usize; 5] = [32, 64, 128, 256, 512];
 /// Growth over a window that counts as exponential: one decade.
 const EXP_MIN_GROWTH_LN: f64 = std::f64::consts::LN_10;
 /// Minimum straightness of ln|error| against the row index.
@@ -27,15 +27,15 @@ const EXP_MIN_RATE_RATIO: f64 = 0.7;
 
 /// The energy-balance detector.
 pub struct Energy {
-    balance: Option<EnergyBalance>,
-    clock: Clock,
     warn: f64,
     bound: f64,
     level: Level,
     over: u32,
     under: u32,
-    /// ln|error| history, ring of the largest window.
+    /// ln of the running peak of |error|, ring of the largest window.
     hist: Vec<f64>,
+    /// Largest |error| so far in the segment.
+    peak_error: f64,
     rows: usize,
     last: Option<BalanceReading>,
     rate_per_row: Option<f64>,
@@ -43,16 +43,15 @@ pub struct Energy {
 
 impl Energy {
     /// Detector for a segment with these roles.
-    pub fn new(roles: &RoleMap, settings: &DetectSettings) -> Self {
+    pub fn new(settings: &DetectSettings) -> Self {
         Self {
-            balance: EnergyBalance::new(roles),
-            clock: Clock::new(roles),
             warn: settings.balance_warning,
             bound: settings.overflow_bound,
             level: Level::Ok,
             over: 0,
             under: 0,
             hist: vec![f64::NAN; EXP_WINDOWS[EXP_WINDOWS.len() - 1]],
+            peak_error: 0.0,
             rows: 0,
             last: None,
             rate_per_row: None,
@@ -84,8 +83,8 @@ impl Energy {
         })
     }
 
-    fn terms_sentence(&self) -> String {
-        let Some(b) = &self.balance else {
+    fn terms_sentence(balance: Option<&EnergyBalance>) -> String {
+        let Some(b) = balance else {
             return String::new();
         };
         let found: Vec<&str> = b.found().iter().map(|t| term_name(*t)).collect();
@@ -125,16 +124,16 @@ impl Detector for Energy {
         "energy"
     }
 
-    fn feed(&mut self, sample: &Sample, out: &mut Vec<Finding>) {
-        self.clock.tick(sample.values, sample.arrival_s);
-        let Some(balance) = self.balance.as_mut() else {
+    fn feed(&mut self, sample: &Sample, shared: &Shared, out: &mut Vec<Finding>) {
+        let Some(reading) = shared.reading else {
             return;
         };
-        let Some(reading) = balance.update(sample.values) else {
-            return;
-        };
+        let clock = &shared.clock;
         let cap = self.hist.len();
-        self.hist[self.rows % cap] = reading.error.abs().ln();
+        // The envelope of the error: the energy an instability creates piles
+        // up, while the exchange between terms makes the error itself swing.
+        self.peak_error = self.peak_error.max(reading.error.abs());
+        self.hist[self.rows % cap] = self.peak_error.ln();
         self.rows += 1;
         self.last = Some(reading);
         let Some(rel) = reading.relative else {
@@ -156,7 +155,7 @@ impl Detector for Energy {
         } else {
             None
         };
-        let time = self.clock.time;
+        let time = clock.time;
         let mut evidence = Evidence {
             balance_error: Some(rel),
             ..Evidence::default()
@@ -169,12 +168,12 @@ impl Detector for Energy {
         let new_level = if let Some(rate) = self.rate_per_row
             && self.over >= 1
         {
-            let k = self.clock.steps_per_output();
+            let k = clock.steps_per_output();
             // Energy ∝ amplitude², so amplitude grows by exp(rate/2) per output.
             let rho_step = (rate / (2.0 * k)).exp();
             evidence.growth_per_step = Some(rho_step);
             evidence.growth_per_output = Some((rate / 2.0).exp());
-            if let Some(tpr) = self.clock.time_per_row.filter(|v| *v > 0.0) {
+            if let Some(tpr) = clock.time_per_row.filter(|v| *v > 0.0) {
                 evidence.growth_rate_per_s = Some(rate / 2.0 / tpr);
             }
             forecast::fill(
@@ -182,7 +181,7 @@ impl Detector for Energy {
                 reading.scale.sqrt(),
                 rho_step,
                 self.bound.sqrt(),
-                &self.clock,
+                clock,
             );
             Level::Critical
         } else if self.over >= PERSIST_ROWS {
@@ -204,14 +203,14 @@ impl Detector for Energy {
                 Level::Critical => format!(
                     "Energy balance error {:+.1} % and growing exponentially: energy is created by the integration, a numerical instability.{}",
                     rel * 100.0,
-                    self.terms_sentence()
+                    Self::terms_sentence(shared.balance.as_ref())
                 ),
                 Level::Warning => format!(
                     "Energy balance error {:+.1} % of the energy scale (threshold {:.1} %): {}.{}",
                     rel * 100.0,
                     self.warn * 100.0,
                     word,
-                    self.terms_sentence()
+                    Self::terms_sentence(shared.balance.as_ref())
                 ),
                 Level::Ok => format!(
                     "Energy balance back within {:.1} % ({:+.2} %).",

@@ -9,17 +9,19 @@
 //!
 //! Refits are triggered per row by a cheap test: the last fit predicts each
 //! new row; when the one-step misfit rises well above the misfit of the fit,
-//! something new is in the data. Otherwise the fit is renewed once per window.
+//! something new is in the data. A fit that still predicts well is renewed
+//! only every few windows. A growing mode is refitted every few rows while
+//! it is followed; an eigenvalue that claims growth but fails its checks is
+//! looked at again after a stride that doubles each time it fails again.
 //!
 //! Growth alone is not a fault — snap-through, flutter and resonance grow too.
 //! Critical needs a numerical signature as well: a mode at a frequency no
 //! integrator resolves (sign-alternating per output, or above a quarter cycle
 //! per step), or energy being created while the mode grows.
 
-use super::balance::EnergyBalance;
 use super::clock::Clock;
 use super::modes::{self, Analysis, GrowingMode};
-use super::{DetectSettings, Detector, Evidence, Finding, Sample, Status, forecast};
+use super::{DetectSettings, Detector, Evidence, Finding, Sample, Shared, Status, forecast};
 use crate::alarm::Level;
 use crate::parse::roles::{Role, RoleMap};
 
@@ -30,11 +32,18 @@ const SHORT_ROWS: usize = 4 * modes::EMBED_DIM;
 /// Relative one-step misfit of the long window above which the short one is tried.
 const SHORT_FIT_MISFIT: f64 = 1e-3;
 /// Fewest rows for a first fit.
-const MIN_ROWS: usize = 3 * modes::EMBED_DIM;
+const MIN_ROWS: usize = modes::MIN_FIT_ROWS;
 /// Rows between fits before the first model exists.
 const EMPTY_STRIDE: usize = 8;
 /// Rows between fits while a growing mode is being followed.
 const FOLLOW_STRIDE: usize = 8;
+/// Fits at the follow stride for a growing eigenvalue not judged numerical,
+/// before the stride starts doubling.
+const FITS_BEFORE_BACKOFF: u32 = 4;
+/// Rows between fits while the last fit still predicts each new row well.
+const REFRESH_ROWS: usize = 8 * WINDOW_ROWS;
+/// Fewest rows between a fit and one called by a per-row trigger.
+const TRIGGER_GAP: usize = 4;
 /// Refit when the RMS one-step misfit exceeds this multiple of the fit's own.
 const TRIGGER_RATIO: f64 = 4.0;
 /// Weight of the newest row in the misfit average.
@@ -45,9 +54,10 @@ const QUIET_FITS_TO_CLEAR: u32 = 3;
 /// Per-row predictor of the last fit, for the refit trigger.
 struct Model {
     analysis: Analysis,
-    /// Latest snapshot [y_t; y_{t−1}; …], newest first.
+    /// The last `d` channel vectors, a ring of `d` slots of `q` values.
     snap: Vec<f64>,
-    filled: usize,
+    /// Slot of the newest channel vector.
+    head: usize,
     misfit2: f64,
     base2: f64,
     y: Vec<f64>,
@@ -56,28 +66,31 @@ struct Model {
 impl Model {
     /// Update the per-row predictor; returns true when the misfit calls for a refit.
     fn track(&mut self, row: &[f64]) -> bool {
-        let model = self;
-        let q = model.analysis.map.q;
-        let dim = model.snap.len();
-        let mut y = std::mem::take(&mut model.y);
-        model.analysis.map.channels(row, &mut y);
-        if model.filled * q >= dim {
-            let p = &model.analysis.predictor;
-            let mut e2 = 0.0;
-            for (c, yc) in y.iter().enumerate() {
-                let mut pred = 0.0;
-                for (k, s) in model.snap.iter().enumerate() {
-                    pred += p[(c, k)] * s;
+        let (q, d) = (self.analysis.map.q, self.analysis.map.d);
+        let mut y = std::mem::take(&mut self.y);
+        self.analysis.map.channels(row, &mut y);
+        // The predictor is column-major: columns lag·q .. lag·q + q hold the
+        // gains of the channel vector `lag` rows back. The prediction error
+        // is accumulated in place.
+        let p = self.analysis.predictor.as_slice();
+        let mut err = [0.0; modes::MAX_CHANNELS];
+        err[..q].copy_from_slice(&y);
+        let mut slot = self.head;
+        for gains in p.chunks_exact(q * q) {
+            let s = &self.snap[slot * q..(slot + 1) * q];
+            for (g, sv) in gains.chunks_exact(q).zip(s) {
+                for (e, gv) in err.iter_mut().zip(g) {
+                    *e -= gv * sv;
                 }
-                e2 += (yc - pred) * (yc - pred);
             }
-            model.misfit2 += MISFIT_WEIGHT * (e2 / q as f64 - model.misfit2);
+            slot = if slot == 0 { d - 1 } else { slot - 1 };
         }
-        model.snap.copy_within(0..dim - q, q);
-        model.snap[..q].copy_from_slice(&y);
-        model.filled += 1;
-        model.y = y;
-        model.misfit2 > TRIGGER_RATIO * TRIGGER_RATIO * model.base2
+        let e2: f64 = err[..q].iter().map(|e| e * e).sum();
+        self.misfit2 += MISFIT_WEIGHT * (e2 / q as f64 - self.misfit2);
+        self.head = if self.head + 1 == d { 0 } else { self.head + 1 };
+        self.snap[self.head * q..(self.head + 1) * q].copy_from_slice(&y);
+        self.y = y;
+        self.misfit2 > TRIGGER_RATIO * TRIGGER_RATIO * self.base2
     }
 }
 
@@ -89,8 +102,6 @@ pub struct Growth {
     /// Relative balance error at each row of the window (NaN before it is judged).
     balances: Vec<f64>,
     count: usize,
-    clock: Clock,
-    balance: Option<EnergyBalance>,
     balance_rel: Option<f64>,
     bound: f64,
     /// Energy created beyond this fraction of the energy scale confirms that a
@@ -99,8 +110,17 @@ pub struct Growth {
     energy_confirm: f64,
     model: Option<Model>,
     since_fit: usize,
-    min_gap: usize,
-    following: bool,
+    /// The fitted columns have changed since the window started (see `feed`).
+    moving: bool,
+    /// Rows until the next scheduled fit.
+    stride: usize,
+    /// Consecutive fits with a growing eigenvalue not judged numerical.
+    unconfirmed: u32,
+    /// A growing mode without a numerical signature is followed: refit as soon
+    /// as the energy balance shows energy created.
+    watch_balance: bool,
+    /// A per-row trigger fired; refit once the minimum gap has passed.
+    pending: bool,
     level: Level,
     quiet_fits: u32,
     first_line: Option<u64>,
@@ -130,15 +150,16 @@ impl Growth {
             balances: vec![f64::NAN; WINDOW_ROWS],
             cols,
             count: 0,
-            clock: Clock::new(roles),
-            balance: EnergyBalance::new(roles),
             balance_rel: None,
             bound: settings.overflow_bound,
             energy_confirm: settings.balance_warning,
             model: None,
             since_fit: 0,
-            min_gap: FOLLOW_STRIDE,
-            following: false,
+            moving: false,
+            stride: EMPTY_STRIDE,
+            unconfirmed: 0,
+            watch_balance: false,
+            pending: false,
             level: Level::Ok,
             quiet_fits: 0,
             first_line: None,
@@ -148,14 +169,24 @@ impl Growth {
         }
     }
 
+    /// Stride after a fit whose growing eigenvalue is not (yet) judged
+    /// numerical: the follow stride for a few fits, then doubling.
+    fn backoff(&mut self) -> usize {
+        self.unconfirmed += 1;
+        let doublings = self.unconfirmed.saturating_sub(FITS_BEFORE_BACKOFF).min(16);
+        (FOLLOW_STRIDE << doublings).min(REFRESH_ROWS)
+    }
+
     fn reset_window(&mut self) {
         self.count = 0;
+        self.moving = false;
         self.model = None;
         self.since_fit = 0;
+        self.pending = false;
     }
 
     /// Fit the window and decide.
-    fn refit(&mut self, line: u64, out: &mut Vec<Finding>) {
+    fn refit(&mut self, line: u64, clock: &Clock, out: &mut Vec<Finding>) {
         let m = self.cols.len();
         let n = self.count.min(WINDOW_ROWS);
         let start = self.count - n;
@@ -166,6 +197,7 @@ impl Growth {
                 .extend_from_slice(&self.data[p * m..(p + 1) * m]);
         }
         self.since_fit = 0;
+        self.pending = false;
         let Some(analysis) = modes::analyse(&self.scratch, n, m) else {
             return;
         };
@@ -183,6 +215,7 @@ impl Growth {
         }
         // Seed the predictor with the newest snapshot of the window.
         let (q, d) = (analysis.map.q, analysis.map.d);
+        // Newest in slot 0, the one before in slot d − 1, and so on.
         let mut snap = vec![0.0; q * d];
         let mut y = vec![0.0; q];
         for lag in 0..d.min(n) {
@@ -190,25 +223,35 @@ impl Growth {
             analysis
                 .map
                 .channels(&self.scratch[r * m..(r + 1) * m], &mut y);
-            snap[lag * q..(lag + 1) * q].copy_from_slice(&y);
+            let slot = (d - lag) % d;
+            snap[slot * q..(slot + 1) * q].copy_from_slice(&y);
         }
         let floor = 1e-9 * analysis.signal_rms;
         let base = analysis.misfit_rms.max(floor);
         self.model = Some(Model {
             snap,
-            filled: d,
+            head: 0,
             misfit2: base * base,
             base2: base * base,
             y,
             analysis,
         });
         match growing {
-            Some((g, n)) => self.judge(g, line, n, out),
+            Some((g, n)) => self.judge(g, line, n, clock, out),
             None => {
                 // An eigenvalue that claims growth but failed its checks is
-                // looked at again soon: it may be a mode still near the noise.
-                self.following = candidate;
-
+                // looked at again soon, since it may be a mode still near the
+                // noise; less often once it keeps failing.
+                self.stride = if candidate {
+                    self.backoff()
+                } else if n < WINDOW_ROWS {
+                    // The window is still filling: each fit sees more.
+                    EMPTY_STRIDE
+                } else {
+                    self.unconfirmed = 0;
+                    REFRESH_ROWS
+                };
+                self.watch_balance = false;
                 self.evidence = Evidence::default();
                 self.quiet_fits += 1;
                 if self.level > Level::Ok && self.quiet_fits >= QUIET_FITS_TO_CLEAR {
@@ -217,7 +260,7 @@ impl Growth {
                         detector: "growth",
                         level: Level::Ok,
                         line,
-                        time: self.clock.time,
+                        time: clock.time,
                         message: "No growing mode in the latest outputs.".into(),
                         evidence: Evidence::default(),
                     });
@@ -226,11 +269,16 @@ impl Growth {
         }
     }
 
-    fn judge(&mut self, g: GrowingMode, line: u64, n: usize, out: &mut Vec<Finding>) {
-        self.following = true;
-        self.min_gap = FOLLOW_STRIDE;
+    fn judge(
+        &mut self,
+        g: GrowingMode,
+        line: u64,
+        n: usize,
+        clock: &Clock,
+        out: &mut Vec<Finding>,
+    ) {
         self.quiet_fits = 0;
-        let k = self.clock.steps_per_output();
+        let k = clock.steps_per_output();
         let rho_out = g.mu.norm();
         let rho_step = rho_out.powf(1.0 / k);
         let phase = g.mu.arg().abs();
@@ -240,7 +288,7 @@ impl Growth {
             balance_error: self.balance_rel,
             ..Evidence::default()
         };
-        let tpr = self.clock.time_per_row.filter(|v| *v > 0.0);
+        let tpr = clock.time_per_row.filter(|v| *v > 0.0);
         if let Some(tpr) = tpr {
             ev.growth_rate_per_s = Some(rho_out.ln() / tpr);
             ev.frequency_hz = Some(phase / (2.0 * std::f64::consts::PI) / tpr);
@@ -254,7 +302,7 @@ impl Growth {
         let seg_first = self.first_line.unwrap_or(line);
         let onset = (line as f64 - back * spacing).max(seg_first as f64);
         ev.onset_line = Some(onset.round() as u64);
-        if let (Some(t), Some(tpr)) = (self.clock.time, tpr) {
+        if let (Some(t), Some(tpr)) = (clock.time, tpr) {
             let rows_back = (line as f64 - onset) / spacing.max(1.0);
             ev.onset_time = Some(t - rows_back * tpr);
         }
@@ -265,7 +313,7 @@ impl Growth {
             (g.share * raw).max(f64::MIN_POSITIVE),
             rho_step,
             self.bound,
-            &self.clock,
+            clock,
         );
         let sign_alternating = phase >= 0.75 * std::f64::consts::PI;
         let above_quarter = k < 1.5 && phase >= 0.5 * std::f64::consts::PI;
@@ -278,6 +326,16 @@ impl Growth {
             .balance_rel
             .is_some_and(|r| r > self.energy_confirm && r - before > self.energy_confirm);
         let numerical = sign_alternating || above_quarter || created;
+        // A mode judged numerical is followed closely; one that may be
+        // physical less often each time, until energy is created (a per-row
+        // trigger, see `feed`).
+        self.stride = if numerical {
+            self.unconfirmed = 0;
+            FOLLOW_STRIDE
+        } else {
+            self.backoff()
+        };
+        self.watch_balance = !numerical;
         self.evidence = ev.clone();
         if numerical && self.level < Level::Critical {
             self.level = Level::Critical;
@@ -285,7 +343,7 @@ impl Growth {
                 detector: "growth",
                 level: Level::Critical,
                 line,
-                time: self.clock.time,
+                time: clock.time,
                 message: critical_message(&ev, k, sign_alternating, created),
                 evidence: ev,
             });
@@ -330,17 +388,29 @@ impl Detector for Growth {
         "growth"
     }
 
-    fn feed(&mut self, sample: &Sample, out: &mut Vec<Finding>) {
-        self.clock.tick(sample.values, sample.arrival_s);
+    fn feed(&mut self, sample: &Sample, shared: &Shared, out: &mut Vec<Finding>) {
         self.first_line.get_or_insert(sample.line);
-        if let Some(b) = self.balance.as_mut()
-            && let Some(r) = b.update(sample.values)
-        {
+        if let Some(r) = shared.reading {
             self.balance_rel = r.relative;
         }
         let m = self.cols.len();
         if m == 0 {
             return;
+        }
+        // Runs often start at exact rest: a window of rest followed by the
+        // first motion is a step, not a free response, so the window starts
+        // with the last row of rest.
+        if !self.moving && self.count > 0 {
+            let same = self
+                .cols
+                .iter()
+                .zip(&self.prev)
+                .all(|(&c, &p)| sample.values.get(c).is_some_and(|&v| v == p));
+            if same {
+                self.count = 0;
+            } else {
+                self.moving = true;
+            }
         }
         let p = self.count % WINDOW_ROWS;
         for (k, &c) in self.cols.iter().enumerate() {
@@ -357,18 +427,22 @@ impl Detector for Growth {
         self.count += 1;
         self.since_fit += 1;
         let row = &self.data[p * m..(p + 1) * m];
-        let triggered = self.model.as_mut().is_some_and(|model| model.track(row));
+        // A trigger waits for the minimum gap between fits rather than being lost.
+        self.pending |= self.model.as_mut().is_some_and(|model| model.track(row));
+        if self.watch_balance && self.balance_rel.is_some_and(|r| r > self.energy_confirm) {
+            self.watch_balance = false;
+            self.pending = true;
+        }
         let n = self.count.min(WINDOW_ROWS);
         if n < MIN_ROWS {
             return;
         }
-        let due = match (&self.model, self.following) {
-            (None, _) => self.since_fit >= EMPTY_STRIDE,
-            (Some(_), true) => self.since_fit >= FOLLOW_STRIDE,
-            (Some(_), false) => self.since_fit >= WINDOW_ROWS,
+        let due = match &self.model {
+            None => self.since_fit >= EMPTY_STRIDE,
+            Some(_) => self.since_fit >= self.stride,
         };
-        if due || (triggered && self.since_fit >= self.min_gap) {
-            self.refit(sample.line, out);
+        if due || (self.pending && self.since_fit >= TRIGGER_GAP) {
+            self.refit(sample.line, &shared.clock, out);
         }
     }
 

@@ -106,18 +106,48 @@ pub struct Status {
     pub evidence: Evidence,
 }
 
+/// What the engine derives from each row once, for every detector: the
+/// segment's clock (time, step, steps per output, arrival) and its energy
+/// balance, ticked with the row before any detector sees it.
+pub struct Shared {
+    pub clock: clock::Clock,
+    /// The balance terms of this segment, when any energy column exists.
+    pub balance: Option<balance::EnergyBalance>,
+    /// The balance reading of the latest row (`None` when its terms were not all finite).
+    pub reading: Option<balance::BalanceReading>,
+}
+
+impl Shared {
+    /// Clock and balance for a segment with these roles.
+    pub fn new(roles: &RoleMap) -> Self {
+        Self {
+            clock: clock::Clock::new(roles),
+            balance: balance::EnergyBalance::new(roles),
+            reading: None,
+        }
+    }
+
+    /// Advance with one row.
+    pub fn tick(&mut self, sample: &Sample) {
+        self.clock.tick(sample.values, sample.arrival_s);
+        self.reading = self.balance.as_mut().and_then(|b| b.update(sample.values));
+    }
+}
+
 /// An online detector.
 pub trait Detector {
     /// Short name used in alarms.
     fn name(&self) -> &'static str;
-    /// Feed one row; push any findings to `out`.
-    fn feed(&mut self, sample: &Sample, out: &mut Vec<Finding>);
+    /// Feed one row, with the quantities the engine derived from it; push
+    /// any findings to `out`.
+    fn feed(&mut self, sample: &Sample, shared: &Shared, out: &mut Vec<Finding>);
     /// Contribute the latest estimates to the status.
     fn status(&self, _status: &mut Status) {}
 }
 
 /// All detectors for one segment.
 pub struct Engine {
+    shared: Shared,
     detectors: Vec<Box<dyn Detector + Send>>,
     status: Status,
 }
@@ -128,10 +158,11 @@ impl Engine {
         let detectors: Vec<Box<dyn Detector + Send>> = vec![
             Box::new(nonfinite::NonFinite::new(schema, roles)),
             Box::new(growth::Growth::new(roles, settings)),
-            Box::new(energy::Energy::new(roles, settings)),
+            Box::new(energy::Energy::new(settings)),
             Box::new(step::StepSize::new(roles)),
         ];
         Self {
+            shared: Shared::new(roles),
             detectors,
             status: Status::default(),
         }
@@ -139,8 +170,9 @@ impl Engine {
 
     /// Feed one row to every detector; findings are appended to `out`.
     pub fn feed(&mut self, sample: &Sample, out: &mut Vec<Finding>) {
+        self.shared.tick(sample);
         for d in &mut self.detectors {
-            d.feed(sample, out);
+            d.feed(sample, &self.shared, out);
         }
     }
 

@@ -6,7 +6,7 @@
 //! number the checks could use. Comparisons use `is_finite`, since `NaN > x` is
 //! always false.
 
-use super::{Detector, Evidence, Finding, Sample};
+use super::{Detector, Evidence, Finding, Sample, Shared};
 use crate::alarm::Level;
 use crate::parse::roles::{Role, RoleMap};
 use crate::parse::{Schema, is_field_overflow};
@@ -22,6 +22,8 @@ pub struct NonFinite {
     reported: Vec<bool>,
     last_time: Option<f64>,
     first_row: bool,
+    /// Every checked column has held a finite value (the common, fast case).
+    settled: bool,
 }
 
 impl NonFinite {
@@ -40,6 +42,7 @@ impl NonFinite {
             reported: vec![false; n],
             last_time: None,
             first_row: true,
+            settled: false,
         }
     }
 
@@ -78,12 +81,16 @@ impl Detector for NonFinite {
         "nonfinite"
     }
 
-    fn feed(&mut self, sample: &Sample, out: &mut Vec<Finding>) {
+    fn feed(&mut self, sample: &Sample, _shared: &Shared, out: &mut Vec<Finding>) {
         let n = self.names.len().min(sample.values.len());
         if let Some(t) = self.time_col.and_then(|i| sample.values.get(i))
             && t.is_finite()
         {
             self.last_time = Some(*t);
+        }
+        // Fast path: every checked column has been finite before and is now.
+        if self.settled && sample.values[..n].iter().all(|v| v.is_finite()) {
+            return;
         }
         let mut dead = Vec::new();
         for i in 0..n {
@@ -133,6 +140,7 @@ impl Detector for NonFinite {
             out.push(self.finding(Level::Warning, sample.line, msg));
         }
         self.first_row = false;
+        self.settled = (0..n).all(|i| self.ignored[i] || self.seen_finite[i]);
     }
 }
 
@@ -159,6 +167,7 @@ mod tests {
                 values,
                 arrival_s: None,
             },
+            &Shared::new(&crate::parse::roles::RoleMap::default()),
             &mut out,
         );
         out

@@ -6,7 +6,7 @@
 //! diverging and repeated cutbacks.
 
 use super::clock::Clock;
-use super::{Detector, Evidence, Finding, Sample};
+use super::{Detector, Evidence, Finding, Sample, Shared};
 use crate::alarm::Level;
 use crate::parse::roles::{Role, RoleMap};
 
@@ -43,7 +43,6 @@ const ITERATIONS_CLIMB: f64 = 3.0;
 
 /// The step-size detector.
 pub struct StepSize {
-    clock: Clock,
     step_col: Option<usize>,
     time_col: Option<usize>,
     iter_col: Option<usize>,
@@ -70,7 +69,6 @@ impl StepSize {
     /// Detector for a segment with these roles.
     pub fn new(roles: &RoleMap) -> Self {
         Self {
-            clock: Clock::new(roles),
             step_col: roles.find(Role::StepNumber),
             time_col: roles.find(Role::Time),
             iter_col: roles.find(Role::Iterations),
@@ -95,11 +93,11 @@ impl StepSize {
     }
 
     /// The step size of this row: the step-size column, or Δtime/Δstep.
-    fn dt(&mut self, values: &[f64]) -> Option<f64> {
+    fn dt(&mut self, values: &[f64], clock: &Clock) -> Option<f64> {
         let get = |c: Option<usize>| super::finite_at(values, c);
         let t = get(self.time_col);
         let s = get(self.step_col);
-        let from_col = get(self.clock.dt_col());
+        let from_col = get(clock.dt_col());
         let derived = match (t, self.prev_time, s, self.prev_step) {
             (Some(t), Some(t0), Some(s), Some(s0)) if s > s0 => Some((t - t0) / (s - s0)),
             _ => None,
@@ -173,13 +171,13 @@ impl Detector for StepSize {
         "step"
     }
 
-    fn feed(&mut self, sample: &Sample, out: &mut Vec<Finding>) {
-        self.clock.tick(sample.values, sample.arrival_s);
+    fn feed(&mut self, sample: &Sample, shared: &Shared, out: &mut Vec<Finding>) {
+        let clock = &shared.clock;
         let slot = self.rows % TREND_ROWS;
         let implicit = self.implicit(sample.values, slot);
-        let dt = self.dt(sample.values);
+        let dt = self.dt(sample.values, clock);
         self.rows += 1;
-        let time = self.clock.time;
+        let time = clock.time;
         if let Some((lvl, msg)) = &implicit {
             if *lvl > self.implicit_level {
                 self.implicit_level = *lvl;
@@ -215,15 +213,16 @@ impl Detector for StepSize {
         // newest step the smallest of the last DECLINE_ROWS, half of what it
         // was DECLINE_ROWS ago, and falling in both halves of that span (a
         // sudden drop or a dip that holds or recovers does not qualify).
-        let newest_smallest = self.dts.iter().all(|v| !v.is_finite() || *v >= dt);
         let mid = self.dts[(self.rows - 1 + DECLINE_ROWS / 2) % DECLINE_ROWS];
+        // Cheap tests first: the scan of the whole span runs only when the
+        // step is already falling.
         let declining = long_ago.is_finite()
             && dt < FALLING * long_ago
             && mid < STILL_FALLING * long_ago
             && old.is_finite()
             && dt < STILL_FALLING * old
-            && newest_smallest
-            && dt < DECLINE_DROP * self.peak.max(dt);
+            && dt < DECLINE_DROP * self.peak.max(dt)
+            && self.dts.iter().all(|v| !v.is_finite() || *v >= dt);
         self.peak = self.peak.max(dt);
         let ratio = dt / self.peak;
         self.below = if ratio < WARN_DROP { self.below + 1 } else { 0 };
@@ -255,7 +254,7 @@ impl Detector for StepSize {
                     // reachable is bounded by the sum Δt_row·(1 + r + r² + …).
                     if long_ago.is_finite() && dt < long_ago {
                         let r = (dt / long_ago).powf(1.0 / DECLINE_ROWS as f64);
-                        if let (Some(t), Some(tpr)) = (time, self.clock.time_per_row) {
+                        if let (Some(t), Some(tpr)) = (time, clock.time_per_row) {
                             m += &format!(
                                 " At this rate of decline the run cannot get past t = {:.6e}.",
                                 t + tpr / (1.0 - r)
