@@ -16,7 +16,7 @@ const CLEAR_FRACTION: f64 = 0.8;
 /// Window lengths (rows) over which exponential growth of the error is tested:
 /// a geometric ladder, so that a slow instability is judged on a window about
 /// as long as it takes to grow a decade.
-const EXP_WINDOWS: [usize; 5] = [32, 64, 128, 256, 512];
+const EXP_WINDOWS: [usize; 7] = [8, 16, 32, 64, 128, 256, 512];
 /// Growth over a window that counts as exponential: one decade.
 const EXP_MIN_GROWTH_LN: f64 = std::f64::consts::LN_10;
 /// Minimum straightness of ln|error| against the row index.

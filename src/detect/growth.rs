@@ -39,7 +39,7 @@ const EMPTY_STRIDE: usize = 8;
 const FOLLOW_STRIDE: usize = 8;
 /// Fits at the follow stride for a growing eigenvalue not judged numerical,
 /// before the stride starts doubling.
-const FITS_BEFORE_BACKOFF: u32 = 4;
+const FITS_BEFORE_BACKOFF: u32 = 2;
 /// Rows between fits while the last fit still predicts each new row well.
 const REFRESH_ROWS: usize = 8 * WINDOW_ROWS;
 /// Fewest rows between a fit and one called by a per-row trigger.
