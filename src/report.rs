@@ -57,6 +57,10 @@ pub struct AlarmEntry {
     pub time: Option<f64>,
     /// One sentence.
     pub message: String,
+    /// The figures behind it (growth per step, balance error, forecast, onset,
+    /// stability margin), those that apply.
+    #[serde(default)]
+    pub evidence: crate::detect::Evidence,
 }
 
 /// A place in the file.
@@ -120,6 +124,7 @@ impl PipelineSink for ReportBuilder {
             line: a.line,
             time,
             message: a.message.clone(),
+            evidence: a.evidence.clone(),
         });
     }
 

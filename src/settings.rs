@@ -145,8 +145,8 @@ impl Settings {
                 }
                 self.detect.overflow_bound = v;
             }
-            if t.scheme.is_some() {
-                self.detect.scheme = t.scheme;
+            if let Some(text) = t.scheme {
+                self.detect.scheme = Some(scheme_key(&text).context("thresholds.scheme")?);
             }
         }
         match (cfg.actions, named) {
@@ -174,6 +174,9 @@ impl Settings {
                 DelimiterArg::Whitespace => Delimiter::Whitespace,
             });
         }
+        if let Some(text) = &input.scheme {
+            self.detect.scheme = Some(scheme_key(text).context("--scheme")?);
+        }
         for spec in &input.roles {
             let (column, key) = spec
                 .rsplit_once('=')
@@ -198,6 +201,12 @@ impl Settings {
         }
         Ok(())
     }
+}
+
+/// A scheme as `rhoscope limits` names it: NAME or NAME:key=value,...
+fn scheme_key(text: &str) -> anyhow::Result<crate::schemes::Scheme> {
+    text.parse()
+        .map_err(|e: crate::schemes::SchemeError| anyhow::anyhow!("\"{text}\": {e}"))
 }
 
 fn compile(pattern: &str) -> anyhow::Result<regex::bytes::Regex> {

@@ -138,6 +138,52 @@ fn buried_central_difference_mode_found_at_print_precision() {
 }
 
 #[test]
+fn declared_scheme_gives_the_stability_margin_of_the_growing_mode() {
+    // Central difference run at Ω = 2.01 against its limit Ω_crit = 2
+    // (Belytschko, Liu & Moran 2000, §6.3, from memory): the margin
+    // Ω_crit/Ω − 1 = 2/2.01 − 1 = −0.4975 %, recovered by inverting the
+    // scheme's spectral radius at the observed growth per step.
+    let omega = 2.01;
+    let rows = buried_mode_rows(omega, 1e-12, 1, 20_000);
+    let (schema, roles) = cd_layout();
+    let settings = DetectSettings {
+        scheme: Some(rhoscope::schemes::Scheme::CentralDifference),
+        ..DetectSettings::default()
+    };
+    let (alarms, status) = replay(
+        &schema,
+        &roles,
+        &settings,
+        rows.iter()
+            .enumerate()
+            .map(|(i, r)| (i as u64 + 2, r.as_slice())),
+    );
+    let exact = 2.0 / omega - 1.0;
+    let crit = alarms
+        .iter()
+        .find(|a| a.detector == "growth" && a.level == Level::Critical)
+        .expect("critical growth alarm");
+    let m = crit.evidence.stability_margin.unwrap_or(f64::NAN);
+    // Tolerance: the growth per step at the first alarm is good to 5e-3
+    // (see above) and dρ/dΩ ≈ 10.5 there, so Ω is good to about 5e-4.
+    assert!(
+        (m - exact).abs() < 5e-4,
+        "margin at the alarm {m} vs {exact}"
+    );
+    assert!(
+        crit.message.contains("stability margin"),
+        "{}",
+        crit.message
+    );
+    // The sharper final fit (growth good to 1e-4) pins it to about 1e-5.
+    let m = status.evidence.stability_margin.unwrap_or(f64::NAN);
+    assert!((m - exact).abs() < 2e-5, "final margin {m} vs {exact}");
+    // Without a declared scheme there is no margin.
+    let (alarms, _) = run(&schema, &roles, &rows);
+    assert!(alarms.iter().all(|a| a.evidence.stability_margin.is_none()));
+}
+
+#[test]
 fn output_every_k_steps_gives_per_step_factor() {
     // μ = λ^k: |λ| = |μ|^(1/k) is exact (the phase aliases). k = 3 keeps the
     // sign alternation (odd k); k = 2 turns it monotone.
@@ -211,7 +257,11 @@ fn noisy_stable_probes_read_as_no_growth() {
     let (schema, roles) = layout(&cols);
     let (alarms, status) = run(&schema, &roles, &rows);
     assert!(alarms.is_empty(), "{alarms:?}");
-    assert!(status.evidence.growth_per_step.is_none(), "{status:?}");
+    // The latest fit's estimate is shown, but it must not claim growth: over
+    // a 200-row window it stays under the fourfold rise the detector needs.
+    let g = status.evidence.growth_per_step.unwrap_or(f64::NAN);
+    assert!(g < 4f64.powf(1.0 / 200.0), "{status:?}");
+    assert!(status.evidence.forecast_steps.is_none(), "{status:?}");
 }
 
 /// Free vibration of a viscously damped single-degree-of-freedom system:

@@ -218,3 +218,42 @@ fn cli_definition_is_consistent() {
     use clap::CommandFactory;
     rhoscope::cli::Cli::command().debug_assert();
 }
+
+#[test]
+fn declared_scheme_is_checked_and_named_in_errors() {
+    let f = temp(b"time,x\n0,1\n1,2\n");
+    for (args, words) in [
+        (vec!["--scheme", "leapfrog-ish"], "unknown scheme"),
+        (vec!["--scheme", "newmark"], "needs --beta"),
+    ] {
+        let out = bin()
+            .arg("scan")
+            .arg(f.path())
+            .args(&args)
+            .output()
+            .unwrap();
+        assert_eq!(out.status.code(), Some(3), "{args:?}");
+        let err = String::from_utf8_lossy(&out.stderr);
+        assert!(err.contains("--scheme") && err.contains(words), "{err}");
+    }
+    let dir = tempfile::tempdir().unwrap();
+    let cfg = dir.path().join("r.toml");
+    std::fs::write(&cfg, "[thresholds]\nscheme = \"hht:alpha=0.2\"\n").unwrap();
+    let out = bin()
+        .arg("scan")
+        .arg(f.path())
+        .arg("--config")
+        .arg(&cfg)
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(3));
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(err.contains("thresholds.scheme"), "{err}");
+    let ok = bin()
+        .arg("scan")
+        .arg(f.path())
+        .args(["--scheme", "newmark:beta=0.25,gamma=0.5"])
+        .output()
+        .unwrap();
+    assert_eq!(ok.status.code(), Some(0), "{ok:?}");
+}

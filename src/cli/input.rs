@@ -34,6 +34,11 @@ pub struct InputArgs {
     /// e.g. 'step (?P<step>\d+) t=(?P<time>\S+)'.
     #[arg(long, value_name = "REGEX", conflicts_with = "delimiter")]
     pub pattern: Option<String>,
+    /// The solver's integration scheme, as `rhoscope limits` names it (e.g.
+    /// central-difference, newmark:beta=0.25,gamma=0.5, hht:alpha=-0.1): the
+    /// stability margin is then reported for what the history shows.
+    #[arg(long, value_name = "SCHEME")]
+    pub scheme: Option<String>,
     /// Give a column a role, e.g. --role 'E_hg=artificial' (repeatable).
     #[arg(long = "role", value_name = "COLUMN=ROLE")]
     pub roles: Vec<String>,

@@ -39,6 +39,8 @@ pub struct Energy {
     rows: usize,
     last: Option<BalanceReading>,
     rate_per_row: Option<f64>,
+    /// Growth and forecast read from the error's exponential rise, while it lasts.
+    growth: Option<Evidence>,
 }
 
 impl Energy {
@@ -55,6 +57,7 @@ impl Energy {
             rows: 0,
             last: None,
             rate_per_row: None,
+            growth: None,
         }
     }
 
@@ -156,6 +159,7 @@ impl Detector for Energy {
             None
         };
         let time = clock.time;
+        self.growth = None;
         let mut evidence = Evidence {
             balance_error: Some(rel),
             ..Evidence::default()
@@ -183,6 +187,7 @@ impl Detector for Energy {
                 self.bound.sqrt(),
                 clock,
             );
+            self.growth = Some(evidence.clone());
             Level::Critical
         } else if self.over >= PERSIST_ROWS {
             Level::Warning
@@ -235,6 +240,9 @@ impl Detector for Energy {
             && let Some(rel) = r.relative
         {
             status.evidence.balance_error = Some(rel);
+        }
+        if let Some(g) = &self.growth {
+            status.evidence.fill_growth_from(g);
         }
     }
 }

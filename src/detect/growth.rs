@@ -24,6 +24,7 @@ use super::modes::{self, Analysis, GrowingMode};
 use super::{DetectSettings, Detector, Evidence, Finding, Sample, Shared, Status, forecast};
 use crate::alarm::Level;
 use crate::parse::roles::{Role, RoleMap};
+use crate::schemes::{Scheme, critical_omega, omega_at_phase, omega_at_radius};
 
 /// Window length in outputs (≥ 3× model order; 200 samples suit ranks 3–6).
 pub const WINDOW_ROWS: usize = 200;
@@ -124,7 +125,13 @@ pub struct Growth {
     level: Level,
     quiet_fits: u32,
     first_line: Option<u64>,
+    /// Simulated time at `first_line`.
+    first_time: Option<f64>,
     evidence: Evidence,
+    /// Estimates of the latest fit, growing mode or not (for the dashboard).
+    latest: Evidence,
+    /// Declared scheme and its stability limit Ω_crit (undamped).
+    scheme: Option<(Scheme, f64)>,
     scratch: Vec<f64>,
     /// Latest raw values of the fitted columns.
     prev: Vec<f64>,
@@ -163,10 +170,52 @@ impl Growth {
             level: Level::Ok,
             quiet_fits: 0,
             first_line: None,
+            first_time: None,
             evidence: Evidence::default(),
+            latest: Evidence::default(),
+            scheme: settings
+                .scheme
+                .and_then(|sc| Some((sc, critical_omega(&sc, 0.0).ok().flatten()?))),
             scratch: Vec::new(),
             prev: vec![0.0; m],
         }
+    }
+
+    /// What the latest fit says whether or not a mode grows: the spectral
+    /// radius per output and per step, the frequency of the dominant
+    /// eigenvalue and, with a declared scheme and output every step, the
+    /// stability margin at that frequency (the phase per step is aliased
+    /// when several steps pass between outputs, so no margin is read then).
+    fn estimate(&self, a: &Analysis, clock: &Clock) -> Evidence {
+        let k = clock.steps_per_output();
+        let rho = a.spectral_radius;
+        let mut ev = Evidence {
+            growth_per_output: Some(rho),
+            growth_per_step: Some(rho.powf(1.0 / k)),
+            ..Evidence::default()
+        };
+        if let Some(tpr) = clock.time_per_row.filter(|v| *v > 0.0) {
+            ev.growth_rate_per_s = Some(rho.ln() / tpr);
+            ev.frequency_hz = Some(a.dominant.arg() / (2.0 * std::f64::consts::PI) / tpr);
+        }
+        if let Some((scheme, oc)) = &self.scheme
+            && k < 1.5
+        {
+            ev.stability_margin = omega_at_phase(scheme, a.dominant.arg(), 0.0, *oc)
+                .ok()
+                .flatten()
+                .filter(|w| *w > 0.0)
+                .map(|w| oc / w - 1.0);
+        }
+        ev
+    }
+
+    /// Stability margin of a mode growing by `rho_step` per step: where the
+    /// declared scheme has that spectral radius, past its limit (negative).
+    fn margin_of_growth(&self, rho_step: f64) -> Option<f64> {
+        let (scheme, oc) = self.scheme.as_ref()?;
+        let omega = omega_at_radius(scheme, rho_step, 0.0, *oc).ok().flatten()?;
+        (omega > 0.0).then(|| oc / omega - 1.0)
     }
 
     /// Stride after a fit whose growing eigenvalue is not (yet) judged
@@ -178,6 +227,7 @@ impl Growth {
     }
 
     fn reset_window(&mut self) {
+        self.latest = Evidence::default();
         self.count = 0;
         self.moving = false;
         self.model = None;
@@ -201,6 +251,7 @@ impl Growth {
         let Some(analysis) = modes::analyse(&self.scratch, n, m) else {
             return;
         };
+        self.latest = self.estimate(&analysis, clock);
         let mut growing = analysis.growing.map(|g| (g, n));
         let candidate = analysis.spectral_radius.ln() * n as f64 > modes::MIN_WINDOW_GROWTH.ln();
         // Contact, yielding and other changes of regime make a long window
@@ -288,6 +339,7 @@ impl Growth {
             balance_error: self.balance_rel,
             ..Evidence::default()
         };
+        ev.stability_margin = self.margin_of_growth(rho_step);
         let tpr = clock.time_per_row.filter(|v| *v > 0.0);
         if let Some(tpr) = tpr {
             ev.growth_rate_per_s = Some(rho_out.ln() / tpr);
@@ -304,7 +356,8 @@ impl Growth {
         ev.onset_line = Some(onset.round() as u64);
         if let (Some(t), Some(tpr)) = (clock.time, tpr) {
             let rows_back = (line as f64 - onset) / spacing.max(1.0);
-            ev.onset_time = Some(t - rows_back * tpr);
+            let t0 = t - rows_back * tpr;
+            ev.onset_time = Some(self.first_time.map_or(t0, |f| t0.max(f)));
         }
         // Forecast from the mode's present raw magnitude.
         let raw = self.prev.iter().fold(0.0_f64, |a, v| a.max(v.abs()));
@@ -367,6 +420,12 @@ fn critical_message(ev: &Evidence, k: f64, alternating: bool, created: bool) -> 
     if created {
         s += " while the energy balance shows energy created";
     }
+    if let Some(m) = ev.stability_margin {
+        s += &format!(
+            " (stability margin {:+.1} %: the step is past the scheme's limit for this mode)",
+            m * 100.0
+        );
+    }
     if let Some(l) = ev.onset_line {
         s += &format!("; it started near line {l}");
     }
@@ -389,7 +448,10 @@ impl Detector for Growth {
     }
 
     fn feed(&mut self, sample: &Sample, shared: &Shared, out: &mut Vec<Finding>) {
-        self.first_line.get_or_insert(sample.line);
+        if self.first_line.is_none() {
+            self.first_line = Some(sample.line);
+            self.first_time = shared.clock.time;
+        }
         if let Some(r) = shared.reading {
             self.balance_rel = r.relative;
         }
@@ -447,16 +509,10 @@ impl Detector for Growth {
     }
 
     fn status(&self, status: &mut Status) {
-        let e = &self.evidence;
-        let s = &mut status.evidence;
-        s.growth_per_output = e.growth_per_output.or(s.growth_per_output);
-        s.growth_per_step = e.growth_per_step.or(s.growth_per_step);
-        s.growth_rate_per_s = e.growth_rate_per_s.or(s.growth_rate_per_s);
-        s.frequency_hz = e.frequency_hz.or(s.frequency_hz);
-        s.forecast_steps = e.forecast_steps.or(s.forecast_steps);
-        s.forecast_time = e.forecast_time.or(s.forecast_time);
-        s.forecast_wall_s = e.forecast_wall_s.or(s.forecast_wall_s);
-        s.onset_line = e.onset_line.or(s.onset_line);
-        s.onset_time = e.onset_time.or(s.onset_time);
+        status.evidence.fill_growth_from(&self.evidence);
+    }
+
+    fn fallback_status(&self, status: &mut Status) {
+        status.evidence.fill_growth_from(&self.latest);
     }
 }

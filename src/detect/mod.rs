@@ -36,32 +36,63 @@ pub fn finite_at(values: &[f64], col: Option<usize>) -> Option<f64> {
         .filter(|v| v.is_finite())
 }
 
-/// Quantitative evidence attached to a finding; every field optional.
-#[derive(Debug, Clone, Default, PartialEq)]
+/// Quantitative evidence attached to a finding; every field optional (and
+/// left out of JSON when absent).
+#[derive(Debug, Clone, Default, PartialEq, serde::Serialize, serde::Deserialize)]
+#[serde(default)]
 pub struct Evidence {
     /// Spectral radius of the fitted map per output interval.
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub growth_per_output: Option<f64>,
     /// Spectral radius per solver step (|μ|^(1/k) when output every k steps).
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub growth_per_step: Option<f64>,
     /// Growth rate per unit simulated time (1/s).
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub growth_rate_per_s: Option<f64>,
     /// Frequency of the dominant growing mode (Hz, simulated time).
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub frequency_hz: Option<f64>,
     /// Energy balance error relative to the energy scale (fraction, signed; + = created).
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub balance_error: Option<f64>,
     /// Solver steps until overflow.
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub forecast_steps: Option<f64>,
     /// Simulated time at overflow.
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub forecast_time: Option<f64>,
     /// Wall-clock seconds until overflow (live only).
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub forecast_wall_s: Option<f64>,
     /// Line where the growing mode is estimated to have started.
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub onset_line: Option<u64>,
     /// Simulated time of the onset.
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub onset_time: Option<f64>,
     /// Stability margin at the observed frequency when the scheme is declared
     /// (Ω_crit/Ω − 1; negative means past the limit).
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub stability_margin: Option<f64>,
+}
+
+impl Evidence {
+    /// Fill the growth, forecast, onset and margin fields that are still
+    /// empty from `other` (the balance error is left alone).
+    pub fn fill_growth_from(&mut self, other: &Evidence) {
+        let fill = |a: &mut Option<f64>, b: Option<f64>| *a = a.or(b);
+        fill(&mut self.growth_per_output, other.growth_per_output);
+        fill(&mut self.growth_per_step, other.growth_per_step);
+        fill(&mut self.growth_rate_per_s, other.growth_rate_per_s);
+        fill(&mut self.frequency_hz, other.frequency_hz);
+        fill(&mut self.forecast_steps, other.forecast_steps);
+        fill(&mut self.forecast_time, other.forecast_time);
+        fill(&mut self.forecast_wall_s, other.forecast_wall_s);
+        fill(&mut self.onset_time, other.onset_time);
+        fill(&mut self.stability_margin, other.stability_margin);
+        self.onset_line = self.onset_line.or(other.onset_line);
+    }
 }
 
 /// What a detector concluded at one line.
@@ -86,8 +117,9 @@ pub struct DetectSettings {
     pub balance_warning: f64,
     /// Magnitude treated as overflow for the forecast (default f64::MAX).
     pub overflow_bound: f64,
-    /// Declared integration scheme, if any (name as `rhoscope limits` takes it).
-    pub scheme: Option<String>,
+    /// Declared integration scheme, if any: the stability margin is then
+    /// reported at the observed growth or frequency.
+    pub scheme: Option<crate::schemes::Scheme>,
 }
 
 impl Default for DetectSettings {
@@ -143,6 +175,10 @@ pub trait Detector {
     fn feed(&mut self, sample: &Sample, shared: &Shared, out: &mut Vec<Finding>);
     /// Contribute the latest estimates to the status.
     fn status(&self, _status: &mut Status) {}
+    /// Contribute estimates of lower standing, after every detector's
+    /// `status` (e.g. the growth of the latest fit when no growing mode is
+    /// confirmed): they fill only what is still empty.
+    fn fallback_status(&self, _status: &mut Status) {}
 }
 
 /// All detectors for one segment.
@@ -181,6 +217,9 @@ impl Engine {
         let mut s = Status::default();
         for d in &self.detectors {
             d.status(&mut s);
+        }
+        for d in &self.detectors {
+            d.fallback_status(&mut s);
         }
         self.status = s;
         &self.status

@@ -102,6 +102,8 @@ pub struct Analysis {
     pub signal_rms: f64,
     /// Largest eigenvalue modulus of the fit (any mode, checked or not).
     pub spectral_radius: f64,
+    /// The eigenvalue of largest modulus (upper half plane).
+    pub dominant: Complex<f64>,
     /// The strongest growing mode that passed its checks.
     pub growing: Option<GrowingMode>,
     pub rank: usize,
@@ -163,7 +165,14 @@ pub fn analyse(rows: &[f64], n: usize, m: usize) -> Option<Analysis> {
     let predicted = &predictor * h.columns(0, snaps - 1);
     let misfit = (h.view((0, 1), (q, snaps - 1)) - predicted).norm_squared();
     let misfit_rms = (misfit / ((snaps - 1) * q) as f64).sqrt();
-    let spectral_radius = f.eigenvalues.iter().map(|e| e.norm()).fold(0.0, f64::max);
+    let dominant = f
+        .eigenvalues
+        .iter()
+        .copied()
+        .max_by(|a, b| a.norm().total_cmp(&b.norm()))
+        .map(|e| Complex::new(e.re, e.im.abs()))
+        .unwrap_or_default();
+    let spectral_radius = dominant.norm();
     let growing = strongest_growing(&f, &h);
     Some(Analysis {
         map,
@@ -171,6 +180,7 @@ pub fn analyse(rows: &[f64], n: usize, m: usize) -> Option<Analysis> {
         misfit_rms,
         signal_rms,
         spectral_radius,
+        dominant,
         growing,
         rank: f.rank,
     })

@@ -15,6 +15,7 @@
 pub mod amplification;
 pub mod courant;
 pub mod fit;
+pub mod inverse;
 pub mod limit;
 pub mod spectrum;
 
@@ -22,6 +23,7 @@ use std::fmt;
 use std::str::FromStr;
 
 pub use amplification::{AlphaParams, amplification_limit, amplification_matrix};
+pub use inverse::{omega_at_phase, omega_at_radius};
 pub use limit::{critical_omega, rho_curve, rho_inf};
 pub use spectrum::{
     damping_ratio_at, eigenvalues, period_error_at, principal_eigenvalue, scheme_radius,
