@@ -76,14 +76,19 @@ impl Energy {
 
     /// Growth rate per row of |error| if it grows exponentially over one of
     /// the test windows.
+    /// The steepest window that passes is taken: a long window averages in
+    /// the slower start, and the forecast should follow the present rate.
     fn exponential_rate(&self) -> Option<f64> {
-        EXP_WINDOWS.iter().find_map(|&w| {
-            let y = self.recent(w)?;
-            if y.iter().any(|v| !v.is_finite()) {
-                return None;
-            }
-            exponential_slope(&y)
-        })
+        EXP_WINDOWS
+            .iter()
+            .filter_map(|&w| {
+                let y = self.recent(w)?;
+                if y.iter().any(|v| !v.is_finite()) {
+                    return None;
+                }
+                exponential_slope(&y)
+            })
+            .reduce(f64::max)
     }
 
     fn terms_sentence(balance: Option<&EnergyBalance>) -> String {
