@@ -33,6 +33,7 @@ pub fn run(args: DemoArgs) -> anyhow::Result<i32> {
             file: file.clone(),
             rate_lines_per_s: args.rate,
             stop_file: args.stop_file.clone(),
+            checkpoint_every_lines: args.checkpoint_every,
         };
         let end = write_live(case.run(), &opts, None)
             .with_context(|| format!("writing '{}'", file.display()))?;
@@ -46,7 +47,7 @@ pub fn run(args: DemoArgs) -> anyhow::Result<i32> {
         }
         return Ok(0);
     }
-    super::demo_dashboard::run(args.headless)
+    super::demo_dashboard::run(args.headless, args.checkpoint_every)
 }
 
 fn scenario(name: &str) -> anyhow::Result<Scenario> {

@@ -22,7 +22,7 @@ use crate::demo::run::{Setup, StepRule};
 use crate::demo::{DEMO_SCENARIO, find};
 
 /// Wall-clock seconds the demo takes to reach its crash line if nothing stops it.
-const SHOW_S: f64 = 45.0;
+const SHOW_S: f64 = 30.0;
 /// Bounds of the writing rate (lines per second).
 const RATE_MIN: f64 = 20.0;
 const RATE_MAX: f64 = 2_000.0;
@@ -82,7 +82,7 @@ fn words(end: &std::io::Result<LiveEnd>) -> String {
 }
 
 /// Run the demo scenario live, watched (dashboard) or guarded (`headless`).
-pub fn run(headless: bool) -> anyhow::Result<i32> {
+pub fn run(headless: bool, checkpoint_every_lines: u64) -> anyhow::Result<i32> {
     let case = find(DEMO_SCENARIO).context("the demo scenario is missing")?;
     let setup = case.setup();
     let lines = case.expected.crash_line.unwrap_or(5_000) as f64;
@@ -92,7 +92,7 @@ pub fn run(headless: bool) -> anyhow::Result<i32> {
     let stop = dir.join("STOP");
     eprintln!("rhoscope demo: {}", case.description);
     eprintln!(
-        "rhoscope demo: writing {} at {rate:.0} lines/s; the guard will create {} on a critical alarm",
+        "rhoscope demo: writing {} at {rate:.0} lines/s; the guard will create {} on a critical alarm; the demo solver looks for it at its checkpoints, every {checkpoint_every_lines} lines",
         file.display(),
         stop.display()
     );
@@ -103,6 +103,7 @@ pub fn run(headless: bool) -> anyhow::Result<i32> {
             file: file.clone(),
             rate_lines_per_s: rate,
             stop_file: Some(stop.clone()),
+            checkpoint_every_lines,
         };
         let run = case.run();
         std::thread::spawn(move || write_live(run, &opts, Some(&cancel)))

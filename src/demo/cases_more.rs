@@ -112,7 +112,7 @@ pub fn more() -> Vec<Spec> {
         spec(
             super::DEMO_SCENARIO,
             Critical,
-            "braced mast swaying in a gusting lateral load; central difference at a fixed step; midway its top closes a clearance collar and the step exceeds the new limit",
+            "braced mast swaying in a gusting lateral load; central difference at a fixed step; midway its top reaches a clearance collar that latches, and the step exceeds the new limit",
             demo_tower,
         ),
         spec(
@@ -517,45 +517,55 @@ fn chain_stop_violent_nan() -> Setup {
     s
 }
 
-/// The demo: a braced six-storey mast swaying in a gusting wind load; its top
-/// closes a clearance collar about halfway, where the collar's stiffness puts
-/// ω_max·dt at 2.02 (growth about 1.33 per step).
+/// ω_max·dt of the demo mast once its collar has latched (central difference is
+/// stable to 2). The undamped oscillator would grow by 1.15 per step there; the
+/// written history of the damped mast shows about 1.18 per step.
+pub const DEMO_TOWER_OMEGA_DT: f64 = 2.005;
+
+/// The demo: a braced six-storey mast swaying in a gusting wind load, modelled
+/// for sway as a shear chain (storey masses, storey lateral stiffnesses), so the
+/// structure stays linear and the growth past the limit stays a steady
+/// exponential. About halfway its top reaches a clearance collar whose catch
+/// latches and holds; the latched collar puts ω_max·dt at
+/// [`DEMO_TOWER_OMEGA_DT`].
 pub fn demo_tower() -> Setup {
-    let mut t: Truss = mast(6, 1.0, 1.5, 5.0e6, 20.0);
-    let top = t.dof(12, 0);
-    let dt = 0.9 * 2.0 / omega_max0(&t.model);
-    let ms = super::build::modes(&t.model, &DVector::zeros(t.model.n()));
+    let storeys = 6;
+    let mut m = chain(storeys, 200.0, 2.0e7);
+    let top = storeys - 1;
+    let dt = 0.9 * 2.0 / omega_max0(&m);
+    let ms = super::build::modes(&m, &DVector::zeros(m.n()));
     let w1 = ms[0].0;
     let k = solve_increasing(
-        |k| omega_with_spring(&t.model, top, k) * dt,
-        2.02,
+        |k| omega_with_spring(&m, top, k) * dt,
+        DEMO_TOWER_OMEGA_DT,
         1.0,
         1e13,
     );
     // Static sway under the full mean load, to place the collar's clearance.
-    let mean = 3.0e3;
-    let k0 = super::build::stiffness0(&t.model);
-    let mut f = DVector::zeros(t.model.n());
+    let mean = 3.0e4;
+    let k0 = super::build::stiffness0(&m);
+    let mut f = DVector::zeros(m.n());
     f[top] = mean;
-    let sway = k0.lu().solve(&f).map_or(0.05, |x| x[top]);
-    t.model.elements.push(to_ground(
+    let sway = k0.lu().solve(&f).map_or(0.01, |x| x[top]);
+    m.elements.push(to_ground(
         top,
-        Law::Stop {
-            gap: 0.6 * sway.abs(),
+        Law::Latch {
+            gap: 0.85 * sway.abs(),
             k,
+            held_at: None,
         },
         true,
     ));
-    t.model.mass_damping_per_s = 0.02 * w1;
+    m.mass_damping_per_s = 0.02 * w1;
     let period = 2.0 * std::f64::consts::PI / w1;
-    t.model.loads.push(Load {
+    m.loads.push(Load {
         dof: top,
         amp_n: mean,
         shape: Shape::Ramp {
-            rise_s: 40.0 * period,
+            rise_s: 150.0 * period,
         },
     });
-    t.model.loads.push(Load {
+    m.loads.push(Load {
         dof: top,
         amp_n: 0.15 * mean,
         shape: Shape::Harmonic {
@@ -563,8 +573,8 @@ pub fn demo_tower() -> Setup {
         },
     });
     let mut s = setup(
-        "invented case: braced mast in a gusting wind, clearance collar at the top",
-        t.model.clone(),
+        "invented case: braced mast in a gusting wind, latching clearance collar at the top",
+        m,
         Scheme::CentralDifference,
         StepRule::Fixed { dt_s: dt },
         1.0e4,
@@ -572,7 +582,7 @@ pub fn demo_tower() -> Setup {
     s.every = 5;
     s.probes = vec![
         disp(top, "ux_top", "top sway"),
-        disp(t.dof(6, 0), "ux_mid", "mid-height sway"),
+        disp(2, "ux_mid", "mid-height sway"),
         vel(top, "vx_top", "top sway velocity"),
     ];
     s

@@ -1,7 +1,8 @@
 //! The live writer: hands a run's history to a file line by line at a given
 //! rate, flushing each line as a solver does, and honours a stop file the way a
-//! solver that polls for one does — it writes a last comment line (restart
-//! written, run ended) and returns. The only file I/O of the demo module.
+//! solver that polls for one does — only at its checkpoints (every N output
+//! lines), where it writes a last comment line (restart written, run ended) and
+//! returns. The only file I/O of the demo module.
 
 use std::fs::File;
 use std::io::{self, Write};
@@ -20,7 +21,13 @@ pub struct LiveOptions {
     pub rate_lines_per_s: f64,
     /// A file whose appearance stops the run.
     pub stop_file: Option<PathBuf>,
+    /// The stop file is looked for at checkpoints, every this many lines
+    /// written (0 or 1: before every line).
+    pub checkpoint_every_lines: u64,
 }
+
+/// Lines between checkpoints when nothing else is asked for.
+pub const DEFAULT_CHECKPOINT_EVERY_LINES: u64 = 100;
 
 /// How the live run ended.
 #[derive(Debug, Clone, PartialEq)]
@@ -37,7 +44,7 @@ fn exists(p: &Path) -> bool {
     std::fs::metadata(p).is_ok()
 }
 
-/// Write `run` to `opts.file` live. Checks the stop file before every line;
+/// Write `run` to `opts.file` live. Checks the stop file at each checkpoint;
 /// `cancel`, when given and set, ends the writing quietly (for a caller's thread).
 pub fn write_live(
     mut run: Run,
@@ -53,12 +60,14 @@ pub fn write_live(
         if cancel.is_some_and(|c| c.load(Ordering::Relaxed)) {
             return Ok(LiveEnd::Cancelled { lines });
         }
+        let every = opts.checkpoint_every_lines.max(1);
         if let Some(stop) = &opts.stop_file
+            && lines.is_multiple_of(every)
             && exists(stop)
         {
             let (step, time_s) = (run.step_number(), run.time_s());
             let text = format!(
-                "stop file {} seen at step {step} (t = {time_s:e} s): restart written, run ended",
+                "stop file {} seen at the checkpoint after line {lines} (step {step}, t = {time_s:e} s; checkpoints every {every} lines): restart written, run ended",
                 stop.display()
             );
             if let Some(note) = run.comment(&text) {

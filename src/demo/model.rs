@@ -17,6 +17,14 @@ pub enum Law {
     Contact { gap: f64, k: f64 },
     /// Two-sided stop (clearance ±gap): N = k·(e − gap) beyond +gap, k·(e + gap) beyond −gap.
     Stop { gap: f64, k: f64 },
+    /// A latching stop: while `held_at` is None it is the two-sided stop of
+    /// clearance ±gap; once the extension has passed ±gap ([`Model::engage_latches`])
+    /// it holds for good as a linear spring about that edge, N = k·(e − held_at).
+    Latch {
+        gap: f64,
+        k: f64,
+        held_at: Option<f64>,
+    },
     /// Saturating softening spring N = f_max·tanh(k·e/f_max).
     Softening { k: f64, f_max: f64 },
     /// Log-strain member of axial rigidity `ea` and rest length `l0`:
@@ -49,6 +57,12 @@ impl Law {
                     0.0
                 }
             }
+            Law::Latch {
+                k,
+                held_at: Some(e0),
+                ..
+            } => k * (e - e0),
+            Law::Latch { gap, k, .. } => Law::Stop { gap: *gap, k: *k }.force(e),
             Law::Softening { k, f_max } => f_max * (k * e / f_max).tanh(),
             Law::LogCrush { ea, l0 } => ea * ((l0 + e) / l0).ln(),
             Law::Table { e: xs, n } => match segment(xs, e) {
@@ -79,6 +93,12 @@ impl Law {
                     0.0
                 }
             }
+            Law::Latch {
+                k,
+                held_at: Some(_),
+                ..
+            } => *k,
+            Law::Latch { gap, k, .. } => Law::Stop { gap: *gap, k: *k }.stiffness(e),
             Law::Softening { k, f_max } => {
                 let c = (k * e / f_max).cosh();
                 k / (c * c)
@@ -106,6 +126,12 @@ impl Law {
                 let p = (e.abs() - gap).max(0.0);
                 0.5 * k * p * p
             }
+            Law::Latch {
+                k,
+                held_at: Some(e0),
+                ..
+            } => 0.5 * k * (e - e0) * (e - e0),
+            Law::Latch { gap, k, .. } => Law::Stop { gap: *gap, k: *k }.energy(e),
             Law::Softening { k, f_max } => {
                 // ∫ f tanh(k e / f) de = f²/k · ln cosh(k e / f), evaluated without overflow:
                 // ln cosh x = |x| + ln(1 + e^{−2|x|}) − ln 2.
@@ -367,6 +393,35 @@ impl Model {
         k
     }
 
+    /// Engage every open latch whose extension at `u` has passed its clearance:
+    /// from now on it holds about the edge it crossed. Force and strain energy are
+    /// continuous at the switch (both laws agree beyond the edge). Returns how many
+    /// latches engaged.
+    pub fn engage_latches(&mut self, u: &DVector<f64>) -> usize {
+        let mut engaged = 0;
+        for el in &mut self.elements {
+            if let Law::Latch {
+                gap,
+                held_at: held @ None,
+                ..
+            } = &mut el.law
+            {
+                let e = match &el.conn {
+                    Conn::Axial { i, j } => j.map_or(0.0, |d| u[d]) - i.map_or(0.0, |d| u[d]),
+                    Conn::Bar { a, b, xa, xb } => {
+                        let (_, l, l0) = bar_state(a, b, xa, xb, u);
+                        l - l0
+                    }
+                };
+                if e.abs() > *gap {
+                    *held = Some(gap.copysign(e));
+                    engaged += 1;
+                }
+            }
+        }
+        engaged
+    }
+
     /// A cheap fingerprint of the tangent: per member its tangent stiffness, its
     /// geometric term N/L and (for bars) kt times its direction. Two states whose
     /// fingerprints agree to a small fraction of the largest stiffness have
@@ -487,6 +542,16 @@ mod tests {
             Law::Linear { k: 3.0 },
             Law::Contact { gap: 0.1, k: 50.0 },
             Law::Stop { gap: 0.05, k: 20.0 },
+            Law::Latch {
+                gap: 0.05,
+                k: 20.0,
+                held_at: None,
+            },
+            Law::Latch {
+                gap: 0.05,
+                k: 20.0,
+                held_at: Some(-0.05),
+            },
             Law::Softening { k: 4.0, f_max: 2.0 },
             Law::LogCrush { ea: 5.0, l0: 1.0 },
             Law::Table {
@@ -510,6 +575,46 @@ mod tests {
                 );
             }
         }
+    }
+
+    /// A latch engages once, on the side it crossed, and then holds both ways;
+    /// force and energy do not jump at the switch (a jump would put energy into
+    /// the books that no force did work for).
+    #[test]
+    fn latch_engages_once_and_holds() {
+        let mut m = Model {
+            mass_kg: vec![1.0],
+            elements: vec![Element {
+                conn: Conn::Axial {
+                    i: None,
+                    j: Some(0),
+                },
+                law: Law::Latch {
+                    gap: 0.1,
+                    k: 50.0,
+                    held_at: None,
+                },
+                recorded: true,
+            }],
+            dashpots: vec![],
+            mass_damping_per_s: 0.0,
+            loads: vec![],
+        };
+        let at = |x: f64| DVector::from_vec(vec![x]);
+        assert_eq!(m.engage_latches(&at(0.05)), 0);
+        let before = (
+            m.elements[0].law.force(0.12),
+            m.elements[0].law.energy(0.12),
+        );
+        assert_eq!(m.engage_latches(&at(0.12)), 1);
+        let law = &m.elements[0].law;
+        // Exact arithmetic on both sides of the switch, so only rounding separates them.
+        let tol = 1e-12;
+        assert!((law.force(0.12) - before.0).abs() < tol);
+        assert!((law.energy(0.12) - before.1).abs() < tol);
+        // Held: pulls back inside the clearance, where the open stop was slack.
+        assert!(law.force(0.0) < -1.0);
+        assert_eq!(m.engage_latches(&at(-0.5)), 0);
     }
 
     #[test]

@@ -650,6 +650,7 @@ impl Run {
         b.d_unrec_j += dc(&self.dynamics.c_unrec);
         b.f_prev = f1;
         self.state = next;
+        self.dynamics.model.engage_latches(&self.state.u);
         self.step += 1;
         self.dt_taken_s = dt;
         self.dt_s = self.next_dt();
