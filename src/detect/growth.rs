@@ -42,7 +42,7 @@ const FOLLOW_STRIDE: usize = 8;
 /// before the stride starts doubling.
 const FITS_BEFORE_BACKOFF: u32 = 2;
 /// Rows between fits while the last fit still predicts each new row well.
-const REFRESH_ROWS: usize = 8 * WINDOW_ROWS;
+const REFRESH_ROWS: usize = 16 * WINDOW_ROWS;
 /// Fewest rows between a fit and one called by a per-row trigger.
 const TRIGGER_GAP: usize = 4;
 /// Refit when the RMS one-step misfit exceeds this multiple of the fit's own.
