@@ -1,7 +1,9 @@
 //! Ingest speed: a generated 14-column history of values like `1.234567890E-03`
 //! read into f64 by the reader alone, and through the whole pipeline (reader +
 //! detectors + alarm book). Before the criterion groups it prints the time that
-//! `wc -l` takes on the same file, the floor for any line-oriented reader.
+//! `wc -l` takes on the same file, the floor for any line-oriented reader. A
+//! third history, of a damped structure with its energies (see
+//! `support/structure.rs`), is what the detectors usually see.
 
 use std::hint::black_box;
 use std::io::Write;
@@ -14,6 +16,9 @@ use rhoscope::parse::roles::RoleRules;
 use rhoscope::parse::{ParseOptions, Reader, RowSink, Schema, SegmentReason, SkipReason};
 use rhoscope::pipeline::Pipeline;
 use rhoscope::settings::Settings;
+
+#[path = "support/structure.rs"]
+mod structure;
 
 const COLUMNS: usize = 14;
 const TARGET_BYTES: usize = 128 << 20;
@@ -71,6 +76,28 @@ fn generate(sep: &str) -> Vec<u8> {
         }
         out.push(b'\n');
         row += 1;
+    }
+    out
+}
+
+/// The same size of history from the healthy damped structure of
+/// `support/structure.rs` (time, step, probes and balancing energies),
+/// whitespace-separated: what the detectors usually see.
+fn generate_structure() -> Vec<u8> {
+    let mut out = Vec::with_capacity(TARGET_BYTES + 4096);
+    out.extend(structure::NAMES.join(" ").as_bytes());
+    out.push(b'\n');
+    let mut s = structure::Structure::new();
+    let mut n = 0;
+    while out.len() < TARGET_BYTES {
+        for (c, v) in s.row(n).iter().enumerate() {
+            if c > 0 {
+                out.push(b' ');
+            }
+            sci(*v, &mut out);
+        }
+        out.push(b'\n');
+        n += 1;
     }
     out
 }
@@ -158,8 +185,12 @@ fn pipeline_all(data: &[u8]) -> f64 {
 }
 
 fn bench(c: &mut Criterion) {
-    for (label, sep) in [("whitespace", " "), ("comma", ",")] {
-        let data = generate(sep);
+    for label in ["whitespace", "comma", "structure"] {
+        let data = match label {
+            "comma" => generate(","),
+            "structure" => generate_structure(),
+            _ => generate(" "),
+        };
         let path = write_file(&format!("ingest-{label}.txt"), &data);
         time_wc(&path, data.len());
         let check = read_all(&data);
