@@ -343,3 +343,71 @@ fn a_run_that_stopped_writing_is_called_out() {
     });
     assert!(screen(&s, 200, 60).contains("no new rows for 2m 05s"));
 }
+
+/// One batch carrying only detector estimates (and a row, so time moves on).
+fn estimates(line: u64, rho: f64, onset_line: u64, arrival_s: f64) -> rhoscope::app::Batch {
+    let mut b = rhoscope::app::Batch::default();
+    let mut row = [0.0; 8];
+    row[0] = 100.0 + line as f64;
+    b.push_row(line, &row);
+    b.status = Some(rhoscope::detect::Status {
+        evidence: rhoscope::detect::Evidence {
+            growth_per_step: Some(rho),
+            onset_line: Some(onset_line),
+            onset_time: Some(onset_line as f64),
+            forecast_steps: Some(4_000.0),
+            forecast_wall_s: Some(25.0),
+            ..Default::default()
+        },
+    });
+    b.arrival_s = Some(arrival_s);
+    b
+}
+
+#[test]
+fn the_alarms_onset_holds_while_the_growth_goes_on() {
+    let mut s = state(Kind::Healthy);
+    let t0 = s.now_s;
+    // An early, mild fit guesses an onset long before the real one.
+    s.update(Msg::Data(Box::new(estimates(
+        2_995,
+        1.0036,
+        2_800,
+        t0 + 0.1,
+    ))));
+    assert_eq!(s.evidence.onset_line, Some(2_800));
+    let mut b = estimates(3_000, 1.18, 2_990, t0 + 0.2);
+    b.items
+        .push(rhoscope::app::Item::Alarm(rhoscope::alarm::Alarm {
+            level: Level::Critical,
+            detector: "growth",
+            line: 3_000,
+            time: None,
+            message: "growth per step 1.18".into(),
+            evidence: rhoscope::detect::Evidence {
+                onset_line: Some(2_990),
+                ..Default::default()
+            },
+        }));
+    s.update(Msg::Data(Box::new(b)));
+    assert_eq!(s.evidence.onset_line, Some(2_990));
+    // A later fit places the onset inside its own window: the alarm's stays.
+    s.update(Msg::Data(Box::new(estimates(3_050, 1.19, 3_040, t0 + 0.3))));
+    assert_eq!(s.evidence.onset_line, Some(2_990));
+    // Growth gone: the fit's own reading is shown again.
+    s.update(Msg::Data(Box::new(estimates(3_060, 0.99, 3_040, t0 + 0.4))));
+    assert_eq!(s.evidence.onset_line, Some(3_040));
+}
+
+#[test]
+fn a_quiet_run_shows_its_forecast_without_a_wall_clock_countdown() {
+    let mut s = state(Kind::Healthy);
+    let t0 = s.now_s;
+    s.update(Msg::Data(Box::new(estimates(3_000, 1.18, 2_990, t0 + 0.1))));
+    let flowing = screen(&s, 200, 60);
+    assert!(flowing.contains("4,000 steps · 25 s"), "{flowing}");
+    s.update(Msg::Tick { now_s: t0 + 60.0 });
+    let quiet = screen(&s, 200, 60);
+    assert!(quiet.contains("4,000 steps at the last row"), "{quiet}");
+    assert!(!quiet.contains("4,000 steps · 25 s"), "{quiet}");
+}

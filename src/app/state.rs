@@ -78,6 +78,10 @@ pub struct View {
     pub probe: usize,
 }
 
+/// Growth per step within this of 1 reads as "≈ 1" on the dashboard: a fit
+/// over a short window cannot tell 1.0004 from 1 (common practice, no source);
+/// the alarms stay the detectors' to raise.
+pub const NEAR_ONE_PER_STEP: f64 = 1e-3;
 /// Deepest zoom: 4⁻⁶ of the run.
 pub const MAX_ZOOM: u8 = 6;
 /// Seconds without new rows before the header says so.
@@ -101,6 +105,9 @@ pub struct AppState {
     /// Detector estimates against x: growth per step, balance error, forecast steps.
     pub derived: Table,
     pub evidence: Evidence,
+    /// Onset carried by the worst alarm of this segment (level, line, time):
+    /// shown while the growth goes on, as later fits' windows move past it.
+    pub alarm_onset: Option<(Level, u64, Option<f64>)>,
     pub rows: u64,
     pub skipped: u64,
     pub segments: u32,
@@ -156,6 +163,7 @@ impl AppState {
             ),
             config,
             evidence: Evidence::default(),
+            alarm_onset: None,
             rows: 0,
             skipped: 0,
             segments: 0,

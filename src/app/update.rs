@@ -288,6 +288,7 @@ impl AppState {
                 }
                 Item::Segment { line, reason } => {
                     self.segments += 1;
+                    self.alarm_onset = None;
                     self.level = Level::Ok;
                     pending_break = true;
                     self.push_event(Event {
@@ -325,6 +326,11 @@ impl AppState {
                     };
                     self.push_event(ev.clone());
                     self.level = self.level.max(a.level);
+                    if let Some(line) = a.evidence.onset_line
+                        && a.level > self.alarm_onset.map_or(Level::Ok, |o| o.0)
+                    {
+                        self.alarm_onset = Some((a.level, line, a.evidence.onset_time));
+                    }
                     if a.level > Level::Ok
                         && self.banner.as_ref().is_none_or(|x| a.level >= x.level)
                     {
@@ -341,6 +347,19 @@ impl AppState {
         }
         if let Some(s) = &b.status {
             self.evidence = s.evidence.clone();
+            // Later fits place the onset inside their own window; while the growth
+            // goes on, the onset the alarm was raised with is the one to show.
+            let growing = self
+                .evidence
+                .growth_per_step
+                .is_some_and(|r| r > 1.0 + super::state::NEAR_ONE_PER_STEP);
+            if growing
+                && let Some((_, line, time)) = self.alarm_onset
+                && self.evidence.onset_line.is_none_or(|now| line < now)
+            {
+                self.evidence.onset_line = Some(line);
+                self.evidence.onset_time = time;
+            }
             if let Some(x) = self.table.last_x() {
                 let e = &self.evidence;
                 let nan = f64::NAN;

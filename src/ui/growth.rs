@@ -16,8 +16,10 @@ use super::chart::{self, Series, Spec};
 use super::format::{count, duration, hz, num, pct};
 use super::theme::{Theme, symbol};
 
-/// Growth per step above which the readout is marked as growing.
-const GROWING: f64 = 1.0;
+use crate::app::state::NEAR_ONE_PER_STEP as NEAR_ONE;
+
+/// Below this a fitted frequency is a real, non-oscillating mode (Hz).
+const MONOTONE_HZ: f64 = 1e-9;
 
 /// Chart of the growth per step against the shared x window.
 pub fn chart(f: &mut Frame, area: Rect, s: &AppState, t: &Theme, x_labels: bool) {
@@ -108,19 +110,34 @@ pub(crate) fn x_name(s: &AppState) -> &'static str {
 fn growth_level(rho: Option<f64>) -> Level {
     match rho {
         Some(r) if !r.is_finite() => Level::Critical,
-        Some(r) if r > GROWING => Level::Warning,
+        Some(r) if r > 1.0 + NEAR_ONE => Level::Warning,
         _ => Level::Ok,
     }
+}
+
+fn near_one(rho: Option<f64>) -> bool {
+    rho.is_some_and(|r| (r - 1.0).abs() <= NEAR_ONE)
 }
 
 fn growth_words(rho: Option<f64>, short: bool) -> &'static str {
     match rho {
         None => "",
         Some(r) if !r.is_finite() => "✖ not finite",
-        Some(r) if r > GROWING && short => "▲ above 1",
-        Some(r) if r > GROWING => "▲ above 1: growing",
+        _ if near_one(rho) && short => "≈ 1",
+        _ if near_one(rho) => "≈ 1: no clear growth",
+        Some(r) if r > 1.0 && short => "▲ above 1",
+        Some(r) if r > 1.0 => "▲ above 1: growing",
         Some(_) if short => "✔ ≤ 1",
         Some(_) => "✔ at or below 1",
+    }
+}
+
+/// The fitted frequency; a real eigenvalue has none to speak of.
+fn mode_words(f_hz: Option<f64>, narrow: bool) -> String {
+    match f_hz {
+        Some(f) if f.abs() < MONOTONE_HZ && narrow => "monotone".into(),
+        Some(f) if f.abs() < MONOTONE_HZ => "0 Hz (monotone)".into(),
+        _ => hz(f_hz),
     }
 }
 
@@ -144,6 +161,9 @@ pub fn readouts(f: &mut Frame, area: Rect, s: &AppState, t: &Theme) {
             "growth per step"
         },
         match e.growth_per_step {
+            Some(_) if near_one(e.growth_per_step) => {
+                format!("ρ {} ≈ 1", num(e.growth_per_step, 5))
+            }
             Some(_) => format!(
                 "ρ {} {}",
                 num(e.growth_per_step, 5),
@@ -172,7 +192,7 @@ pub fn readouts(f: &mut Frame, area: Rect, s: &AppState, t: &Theme) {
     ));
     rows.push((
         if narrow { "mode" } else { "dominant mode" },
-        hz(e.frequency_hz),
+        mode_words(e.frequency_hz, narrow),
         Level::Ok,
     ));
     let onset = match (e.onset_line, e.onset_time) {
@@ -186,8 +206,13 @@ pub fn readouts(f: &mut Frame, area: Rect, s: &AppState, t: &Theme) {
         None => "—".into(),
         Some(n) => {
             let mut v = format!("{} steps", count(n.max(0.0).round() as u64));
-            if let Some(w) = e.forecast_wall_s {
+            // Wall-clock seconds only while rows flow: a quiet run is not counting down.
+            let quiet = s.quiet_for_s().is_some();
+            if let Some(w) = e.forecast_wall_s.filter(|_| !quiet) {
                 v.push_str(&format!(" · {}", duration(Some(w))));
+            }
+            if quiet && !narrow {
+                v.push_str(" at the last row");
             }
             if !narrow && let Some(tm) = e.forecast_time {
                 v.push_str(&format!(" · t {}", num(Some(tm), 4)));
@@ -234,4 +259,27 @@ pub fn readouts(f: &mut Frame, area: Rect, s: &AppState, t: &Theme) {
         .border_style(t.border())
         .title(Span::styled(" growth ", t.title()));
     f.render_widget(Paragraph::new(lines).block(block), area);
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn growth_within_a_thousandth_of_one_reads_about_one() {
+        assert_eq!(growth_words(Some(1.0004), true), "≈ 1");
+        assert_eq!(growth_level(Some(1.0004)), Level::Ok);
+        assert_eq!(growth_words(Some(0.9995), false), "≈ 1: no clear growth");
+        assert_eq!(growth_words(Some(1.0011), true), "▲ above 1");
+        assert_eq!(growth_level(Some(1.0011)), Level::Warning);
+        assert_eq!(growth_words(Some(0.99), true), "✔ ≤ 1");
+    }
+
+    #[test]
+    fn a_real_mode_reads_monotone() {
+        assert_eq!(mode_words(Some(0.0), false), "0 Hz (monotone)");
+        assert_eq!(mode_words(Some(0.0), true), "monotone");
+        assert_eq!(mode_words(Some(34.12), true), "34.12 Hz");
+        assert_eq!(mode_words(None, false), "—");
+    }
 }
