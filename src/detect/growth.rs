@@ -19,6 +19,8 @@
 //! integrator resolves (sign-alternating per output, or above a quarter cycle
 //! per step), or energy being created while the mode grows.
 
+use nalgebra::Complex;
+
 use super::clock::Clock;
 use super::modes::{self, Analysis, GrowingMode};
 use super::{DetectSettings, Detector, Evidence, Finding, Sample, Shared, Status, forecast};
@@ -49,6 +51,9 @@ const TRIGGER_GAP: usize = 4;
 const TRIGGER_RATIO: f64 = 4.0;
 /// Weight of the newest row in the misfit average.
 const MISFIT_WEIGHT: f64 = 0.125;
+/// Two growing eigenvalues closer than this fraction of their modulus are
+/// taken for the same mode, followed from fit to fit.
+const SAME_MODE: f64 = 0.1;
 /// Fits without a growing mode before a raised critical clears.
 const QUIET_FITS_TO_CLEAR: u32 = 3;
 
@@ -130,6 +135,8 @@ pub struct Growth {
     evidence: Evidence,
     /// Estimates of the latest fit, growing mode or not (for the dashboard).
     latest: Evidence,
+    /// Eigenvalue of the growing mode last judged.
+    followed: Option<Complex<f64>>,
     /// Declared scheme and its stability limit Ω_crit (undamped).
     scheme: Option<(Scheme, f64)>,
     scratch: Vec<f64>,
@@ -173,6 +180,7 @@ impl Growth {
             first_time: None,
             evidence: Evidence::default(),
             latest: Evidence::default(),
+            followed: None,
             scheme: settings
                 .scheme
                 .and_then(|sc| Some((sc, critical_omega(&sc, 0.0).ok().flatten()?))),
@@ -303,6 +311,7 @@ impl Growth {
                     REFRESH_ROWS
                 };
                 self.watch_balance = false;
+                self.followed = None;
                 self.evidence = Evidence::default();
                 self.quiet_fits += 1;
                 if self.level > Level::Ok && self.quiet_fits >= QUIET_FITS_TO_CLEAR {
@@ -359,6 +368,20 @@ impl Growth {
             let t0 = t - rows_back * tpr;
             ev.onset_time = Some(self.first_time.map_or(t0, |f| t0.max(f)));
         }
+        // While the same mode is followed (an eigenvalue close to the last
+        // one), later windows no longer reach back to where it started: keep
+        // the earliest onset seen.
+        let same_mode = self
+            .followed
+            .is_some_and(|m| (m - g.mu).norm() < SAME_MODE * g.mu.norm());
+        if same_mode
+            && let Some(prev) = self.evidence.onset_line
+            && prev < onset.round() as u64
+        {
+            ev.onset_line = Some(prev);
+            ev.onset_time = self.evidence.onset_time;
+        }
+        self.followed = Some(g.mu);
         // Forecast from the mode's present raw magnitude.
         let raw = self.prev.iter().fold(0.0_f64, |a, v| a.max(v.abs()));
         forecast::fill(

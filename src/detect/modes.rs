@@ -209,8 +209,12 @@ fn strongest_growing(f: &fit::DmdFit, h: &DMatrix<f64>) -> Option<GrowingMode> {
             / (n - 1) as f64)
             .sqrt();
         let end = a[n - 1].norm();
-        let snr = if misfit > 0.0 {
-            end / misfit
+        // The noise floor is never below rounding: a mode that appears out of
+        // exact zeros (a run at rest, then an impact) has no misfit to speak
+        // of, and would otherwise be traced back to 1e-300.
+        let floor = misfit.max(fit::ROUNDING_FLOOR * end);
+        let snr = if floor > 0.0 {
+            end / floor
         } else {
             f64::INFINITY
         };
