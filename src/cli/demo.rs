@@ -24,7 +24,7 @@ dashboard on it with the guard armed to create the stop file the demo solver
 honours, and keeps the files there afterwards.
 
 What the demo shows: a braced mast sways in a gusting wind, healthy, for about
-15 s; then its top reaches a clearance collar that latches and holds, and the
+16 s; then its top reaches a clearance collar that latches and holds, and the
 stiffer structure puts the fixed step just past central difference's stability
 limit (omega*dt = 2.005). The energy balance breaks, the growth per step rises
 above 1 (about 1.18), the guard raises a critical alarm and creates the stop

@@ -132,13 +132,41 @@ fn growth_words(rho: Option<f64>, short: bool) -> &'static str {
     }
 }
 
-/// The fitted frequency; a real eigenvalue has none to speak of.
-fn mode_words(f_hz: Option<f64>, narrow: bool) -> String {
-    match f_hz {
-        Some(f) if f.abs() < MONOTONE_HZ && narrow => "monotone".into(),
-        Some(f) if f.abs() < MONOTONE_HZ => "0 Hz (monotone)".into(),
+/// Within this fraction of the rows' Nyquist frequency a mode is read as one
+/// that flips sign from row to row (sampling tolerance, common practice, no source).
+const NYQUIST_FRAC: f64 = 0.02;
+
+/// The fitted frequency; a real eigenvalue has none to speak of, and a mode at
+/// the Nyquist frequency of the rows (`row_interval_s` apart) flips sign every
+/// row — an alias of the step-to-step flip of an explicit scheme past its limit,
+/// not a physical frequency.
+fn mode_words(f_hz: Option<f64>, row_interval_s: Option<f64>, narrow: bool) -> String {
+    let nyquist_hz = row_interval_s
+        .filter(|d| *d > 0.0 && d.is_finite())
+        .map(|d| 0.5 / d);
+    match (f_hz, nyquist_hz) {
+        (Some(f), _) if f.abs() < MONOTONE_HZ && narrow => "monotone".into(),
+        (Some(f), _) if f.abs() < MONOTONE_HZ => "0 Hz (monotone)".into(),
+        (Some(f), Some(n)) if (f.abs() - n).abs() <= NYQUIST_FRAC * n => {
+            let tail = if narrow {
+                "(flips)"
+            } else {
+                "(sign flips every row)"
+            };
+            format!("{} {tail}", hz(f_hz))
+        }
         _ => hz(f_hz),
     }
+}
+
+/// Mean simulated time between rows, when x is time.
+fn row_interval_s(s: &AppState) -> Option<f64> {
+    if !s.x_is_time() {
+        return None;
+    }
+    let (lo, hi) = s.table.x_range()?;
+    let rows = s.table.rows();
+    (rows > 1).then(|| (hi - lo) / (rows - 1) as f64)
 }
 
 /// The readouts block: one fact per line, label then value.
@@ -192,7 +220,7 @@ pub fn readouts(f: &mut Frame, area: Rect, s: &AppState, t: &Theme) {
     ));
     rows.push((
         if narrow { "mode" } else { "dominant mode" },
-        mode_words(e.frequency_hz, narrow),
+        mode_words(e.frequency_hz, row_interval_s(s), narrow),
         Level::Ok,
     ));
     let onset = match (e.onset_line, e.onset_time) {
@@ -277,9 +305,21 @@ mod tests {
 
     #[test]
     fn a_real_mode_reads_monotone() {
-        assert_eq!(mode_words(Some(0.0), false), "0 Hz (monotone)");
-        assert_eq!(mode_words(Some(0.0), true), "monotone");
-        assert_eq!(mode_words(Some(34.12), true), "34.12 Hz");
-        assert_eq!(mode_words(None, false), "—");
+        assert_eq!(mode_words(Some(0.0), None, false), "0 Hz (monotone)");
+        assert_eq!(mode_words(Some(0.0), Some(0.01), true), "monotone");
+        assert_eq!(mode_words(Some(34.12), None, true), "34.12 Hz");
+        assert_eq!(mode_words(None, Some(0.01), false), "—");
+    }
+
+    #[test]
+    fn a_mode_at_the_rows_nyquist_frequency_reads_as_flipping() {
+        // Rows 5 steps of 2.93 ms apart: Nyquist 1 / (2 · 0.01466 s) = 34.1 Hz.
+        let d = 5.0 * 2.932e-3;
+        assert_eq!(
+            mode_words(Some(34.12), Some(d), false),
+            "34.12 Hz (sign flips every row)"
+        );
+        assert_eq!(mode_words(Some(34.12), Some(d), true), "34.12 Hz (flips)");
+        assert_eq!(mode_words(Some(22.53), Some(d), false), "22.53 Hz");
     }
 }
