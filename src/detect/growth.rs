@@ -109,6 +109,8 @@ pub struct Growth {
     balances: Vec<f64>,
     count: usize,
     balance_rel: Option<f64>,
+    /// The energy scale of the balance (running peak of the stored energy).
+    energy_scale: Option<f64>,
     bound: f64,
     /// Energy created beyond this fraction of the energy scale confirms that a
     /// growing mode is numerical: the balance warning threshold, since single
@@ -165,6 +167,7 @@ impl Growth {
             cols,
             count: 0,
             balance_rel: None,
+            energy_scale: None,
             bound: settings.overflow_bound,
             energy_confirm: settings.balance_warning,
             model: None,
@@ -382,15 +385,25 @@ impl Growth {
             ev.onset_time = self.evidence.onset_time;
         }
         self.followed = Some(g.mu);
-        // Forecast from the mode's present raw magnitude.
+        // Forecast from the mode's present raw magnitude; energies grow as its
+        // square (ρ² per step), so a written energy column may reach the
+        // bound first: the sooner of the two is the forecast.
         let raw = self.prev.iter().fold(0.0_f64, |a, v| a.max(v.abs()));
-        forecast::fill(
-            &mut ev,
-            (g.share * raw).max(f64::MIN_POSITIVE),
-            rho_step,
-            self.bound,
-            clock,
-        );
+        let amplitude = (g.share * raw).max(f64::MIN_POSITIVE);
+        let by_amplitude = forecast::steps_to_bound(amplitude, rho_step, self.bound);
+        let by_energy = self
+            .energy_scale
+            .and_then(|e| forecast::steps_to_bound(e, rho_step * rho_step, self.bound));
+        match (by_amplitude, by_energy) {
+            (Some(a), Some(e)) if e < a => forecast::fill(
+                &mut ev,
+                self.energy_scale.unwrap_or(1.0),
+                rho_step * rho_step,
+                self.bound,
+                clock,
+            ),
+            _ => forecast::fill(&mut ev, amplitude, rho_step, self.bound, clock),
+        }
         let sign_alternating = phase >= 0.75 * std::f64::consts::PI;
         let above_quarter = k < 1.5 && phase >= 0.5 * std::f64::consts::PI;
         // Energy created while the mode grew: the balance error rose by the
@@ -477,6 +490,7 @@ impl Detector for Growth {
         }
         if let Some(r) = shared.reading {
             self.balance_rel = r.relative;
+            self.energy_scale = Some(r.scale).filter(|e| *e > 0.0);
         }
         let m = self.cols.len();
         if m == 0 {
