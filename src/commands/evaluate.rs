@@ -67,18 +67,11 @@ pub fn evaluate(cases: &[Scenario]) -> Vec<CaseScore> {
 
 /// Label of a variant from its own run summary, by the catalogue's rule.
 fn relabel(level: Level, s: &Summary) -> Label {
-    let onset_line = match level {
-        Level::Ok => None,
-        Level::Warning => s.drift_line,
-        Level::Critical => [s.unstable_line, s.collapse_line, s.crash_line]
-            .into_iter()
-            .flatten()
-            .min(),
-    };
+    let e = crate::demo::label(level, s);
     Label {
-        level,
-        onset_line,
-        crash_line: s.crash_line,
+        level: e.level,
+        onset_line: e.onset_line,
+        crash_line: e.crash_line,
     }
 }
 

@@ -75,8 +75,10 @@ impl Scenario {
     }
 }
 
-/// Label from a declared level and the run's own summary.
-fn label(level: Level, s: &Summary) -> Expected {
+/// Label from a declared level and the run's own summary: the onset is the
+/// first line past the limit, of a collapse or of the crash (critical), or
+/// where the balance drifted (warning).
+pub fn label(level: Level, s: &Summary) -> Expected {
     let onset_line = match level {
         Level::Ok => None,
         Level::Warning => s.drift_line,
