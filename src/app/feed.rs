@@ -5,10 +5,8 @@
 //! messages the loop can interleave with keys and frames. Alarms can also be
 //! passed to an observer (the event log) on this thread.
 
-use std::sync::Arc;
-use std::sync::atomic::{AtomicBool, Ordering};
+use std::sync::atomic::Ordering;
 use std::sync::mpsc::SyncSender;
-use std::thread::JoinHandle;
 use std::time::{Duration, Instant};
 
 use crate::alarm::Alarm;
@@ -18,14 +16,14 @@ use crate::source::{Event, Source, strip_nul};
 
 use super::batch::{Batch, Item};
 use super::update::Msg;
+use super::worker::Worker;
 
 /// Input bytes per batch sent to the loop.
 pub const CHUNK_BYTES: usize = 64 * 1024;
 
 /// Handle of the data thread.
 pub struct Feed {
-    stop: Arc<AtomicBool>,
-    handle: Option<JoinHandle<()>>,
+    worker: Worker,
 }
 
 impl Feed {
@@ -43,9 +41,7 @@ impl Feed {
     where
         S: Source + Send + 'static,
     {
-        let stop = Arc::new(AtomicBool::new(false));
-        let flag = Arc::clone(&stop);
-        let handle = std::thread::spawn(move || {
+        let worker = Worker::spawn(move |flag| {
             let mut pipeline = Pipeline::new(&settings);
             let send = |m: Msg| tx.send(m).is_ok();
             while !flag.load(Ordering::Relaxed) {
@@ -89,19 +85,13 @@ impl Feed {
                 }
             }
         });
-        Self {
-            stop,
-            handle: Some(handle),
-        }
+        Self { worker }
     }
 
     /// Ask the thread to end and wait for it. Drop the receiver first, or the
     /// thread may wait on a full channel.
-    pub fn stop(mut self) {
-        self.stop.store(true, Ordering::Relaxed);
-        if let Some(h) = self.handle.take() {
-            let _ = h.join();
-        }
+    pub fn stop(self) {
+        self.worker.stop();
     }
 }
 

@@ -1,5 +1,5 @@
 //! A background thread that runs until asked to stop: the one shape shared by
-//! the dashboard's ticker and its terminal-input reader.
+//! the dashboard's data thread, its ticker and its terminal-input reader.
 
 use std::sync::Arc;
 use std::sync::atomic::{AtomicBool, Ordering};
