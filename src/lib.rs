@@ -16,6 +16,7 @@ pub mod detect;
 pub mod fleet;
 pub mod history;
 pub mod metrics;
+pub mod outfile;
 pub mod parse;
 pub mod pipeline;
 pub mod report;

@@ -7,6 +7,7 @@ mod detect_checks;
 mod detect_eval;
 mod fleet_cli;
 mod guard;
+mod hostile_paths;
 mod limits_cli;
 mod parse_formats;
 mod parse_props;

@@ -262,7 +262,7 @@ impl Escalation {
         let dry = self.cfg.dry_run;
         match &self.cfg.actions[index] {
             ActionSpec::Touch(p) if dry => Outcome::DryRun(format!("would create {}", p.display())),
-            ActionSpec::Touch(p) => match create_stop_file(p) {
+            ActionSpec::Touch(p) => match create_stop_file(p, &self.cfg.file) {
                 Ok(()) => Outcome::Done(format!("created {}", p.display())),
                 Err(e) => Outcome::Failed(e.to_string()),
             },

@@ -1,47 +1,28 @@
-//! The stop file: created atomically (a temporary file in the same directory,
-//! then a rename), so a solver polling for it never sees a half-written file.
-//! The file is empty; why it was created goes to the event log.
+//! The stop file: created atomically through the one hardened writer
+//! ([`crate::outfile::write_atomic`]), so a solver polling for it never sees a
+//! half-written file and a planted link is never followed. The file is empty;
+//! why it was created goes to the event log.
 
-use std::fs::{self, OpenOptions};
 use std::io;
-use std::path::{Path, PathBuf};
+use std::path::Path;
 
-/// Temporary name next to `path`, unique to this process.
-fn temp_name(path: &Path) -> PathBuf {
-    let name = path
-        .file_name()
-        .map(|n| n.to_string_lossy().into_owned())
-        .unwrap_or_else(|| "stop".into());
-    path.with_file_name(format!(".{name}.{}.rhoscope-tmp", std::process::id()))
-}
+use crate::outfile::{same_file, write_atomic};
 
-/// Create the stop file at `path` atomically.
-pub fn create_stop_file(path: &Path) -> io::Result<()> {
-    let tmp = temp_name(path);
-    let made = OpenOptions::new()
-        .write(true)
-        .create(true)
-        .truncate(true)
-        .open(&tmp)
-        .and_then(|f| f.sync_all());
-    if let Err(e) = made {
+/// Create the stop file at `path` atomically (see [`write_atomic`]: never
+/// through a symlink, never under a guessable name). `watched` is the history:
+/// should the stop path have become that file since the start, nothing is written.
+pub fn create_stop_file(path: &Path, watched: &Path) -> io::Result<()> {
+    if same_file(path, watched) {
         return Err(io::Error::new(
-            e.kind(),
-            format!("cannot create '{}': {e}", tmp.display()),
-        ));
-    }
-    if let Err(e) = fs::rename(&tmp, path) {
-        let _ = fs::remove_file(&tmp);
-        return Err(io::Error::new(
-            e.kind(),
+            io::ErrorKind::InvalidInput,
             format!(
-                "cannot rename '{}' to '{}': {e}",
-                tmp.display(),
-                path.display()
+                "stop file '{}' is the watched history '{}': not written",
+                path.display(),
+                watched.display()
             ),
         ));
     }
-    Ok(())
+    write_atomic(path, b"")
 }
 
 /// A warning to print at start when the stop file is already there (a solver
@@ -71,13 +52,15 @@ pub fn check_at_start(path: &Path) -> Option<String> {
 mod tests {
     #![allow(clippy::unwrap_used)]
     use super::*;
+    use std::fs;
 
     #[test]
     fn creates_an_empty_file_and_leaves_no_temporary_behind() {
         let dir = tempfile::tempdir().unwrap();
         let p = dir.path().join("STOP");
         assert!(check_at_start(&p).is_none());
-        create_stop_file(&p).unwrap();
+        let h = dir.path().join("h.csv");
+        create_stop_file(&p, &h).unwrap();
         assert_eq!(fs::metadata(&p).unwrap().len(), 0);
         let names: Vec<_> = fs::read_dir(dir.path()).unwrap().collect();
         assert_eq!(names.len(), 1, "only the stop file remains");
@@ -89,7 +72,17 @@ mod tests {
         let dir = tempfile::tempdir().unwrap();
         let p = dir.path().join("nope").join("STOP");
         assert!(check_at_start(&p).unwrap().contains("does not exist"));
-        let err = create_stop_file(&p).unwrap_err();
+        let err = create_stop_file(&p, &dir.path().join("h.csv")).unwrap_err();
         assert!(err.to_string().contains("cannot create"));
+    }
+
+    #[test]
+    fn the_history_is_never_replaced_by_the_stop_file() {
+        let dir = tempfile::tempdir().unwrap();
+        let h = dir.path().join("h.csv");
+        fs::write(&h, "t,x\n0,1\n").unwrap();
+        let err = create_stop_file(&h, &h).unwrap_err();
+        assert!(err.to_string().contains("watched history"), "{err}");
+        assert_eq!(fs::read_to_string(&h).unwrap(), "t,x\n0,1\n");
     }
 }

@@ -10,6 +10,7 @@ use crate::alarm::Level;
 use crate::cli::demo::DemoArgs;
 use crate::demo::live::{LiveEnd, LiveOptions, write_live};
 use crate::demo::{DEMO_SCENARIO, Scenario, catalogue, find};
+use crate::outfile::same_file;
 
 /// Run `rhoscope demo`; returns the exit code.
 pub fn run(args: DemoArgs) -> anyhow::Result<i32> {
@@ -27,6 +28,16 @@ pub fn run(args: DemoArgs) -> anyhow::Result<i32> {
         return write_all(dir).map(|_| 0);
     }
     if let Some(file) = &args.live {
+        if let Some(stop) = &args.stop_file
+            && same_file(file, stop)
+        {
+            bail!(
+                "--live '{}' and --stop-file '{}' are the same file: the run would stop at its \
+                 first checkpoint",
+                file.display(),
+                stop.display()
+            );
+        }
         let name = args.scenario.as_deref().unwrap_or(DEMO_SCENARIO);
         let case = scenario(name)?;
         let opts = LiveOptions {

@@ -13,6 +13,7 @@ use crate::cli::fleet::FleetArgs;
 use crate::cli::follow::POLL_FLEET_DEFAULT;
 use crate::fleet::{Fleet, FleetConfig, RunRow, RunState, worst_first};
 use crate::metrics::{self, Context};
+use crate::outfile::{Output, OutputKind, Watched, check_outputs};
 use crate::ui::format;
 
 /// The table of runs, worst first, as plain text (one line per run).
@@ -73,6 +74,21 @@ pub fn run(args: FleetArgs) -> anyhow::Result<i32> {
         Some(a) => Some(metrics::serve::parse_listen(a).map_err(anyhow::Error::msg)?),
         None => None,
     };
+    if let Some(p) = &args.textfile {
+        let patterns: Vec<&str> = args.files.iter().map(String::as_str).collect();
+        let watched = Watched {
+            files: &[],
+            patterns: &patterns,
+        };
+        check_outputs(
+            &watched,
+            &[Output {
+                flag: "--textfile",
+                path: p,
+                kind: OutputKind::Replaced,
+            }],
+        )?;
+    }
     let t0 = Instant::now();
     let cfg = FleetConfig {
         poll_interval: args.follow.poll_or(POLL_FLEET_DEFAULT),
@@ -97,7 +113,7 @@ pub fn run(args: FleetArgs) -> anyhow::Result<i32> {
         let mut rows: Vec<&RunRow> = fleet.rows().collect();
         worst_first(&mut rows, ctx.now_s, ctx.stall_after_s);
         if let Some(p) = &args.textfile {
-            metrics::write::atomic_write(p, &metrics::render(&rows, &ctx))?;
+            crate::outfile::write_atomic(p, metrics::render(&rows, &ctx).as_bytes())?;
         }
         print!("{}", table(&rows, &ctx));
         let _ = std::io::stdout().flush();
@@ -145,7 +161,7 @@ pub fn run(args: FleetArgs) -> anyhow::Result<i32> {
             worst_first(&mut rows, ctx.now_s, ctx.stall_after_s);
             let text = metrics::render(&rows, &ctx);
             if let Some(p) = &args.textfile
-                && let Err(e) = metrics::write::atomic_write(p, &text)
+                && let Err(e) = crate::outfile::write_atomic(p, text.as_bytes())
             {
                 eprintln!("rhoscope fleet: {e}");
             }

@@ -14,6 +14,7 @@ use crate::act::{End, Escalation};
 use crate::cli::actions::{ActionArgs, parse_duration};
 use crate::cli::follow::POLL_DEFAULT;
 use crate::cli::guard::GuardArgs;
+use crate::outfile::{Output, OutputKind, Watched, check_outputs};
 use crate::pipeline::Pipeline;
 use crate::settings::Settings;
 use crate::source::{FollowConfig, Follower};
@@ -119,6 +120,44 @@ pub fn escalation_from_args(
     Ok((cfg, pid))
 }
 
+/// Refuse, before anything is followed, a stop file or event log that is the
+/// history (or that are one file between them); see [`check_outputs`].
+pub fn check_action_outputs(
+    file: &Path,
+    args: &ActionArgs,
+    cfg: &EscalationConfig,
+    events: Option<&Path>,
+) -> anyhow::Result<()> {
+    let touch_flag = if args.touch.is_some() {
+        "--touch"
+    } else {
+        "[actions] touch"
+    };
+    let mut outputs = Vec::new();
+    for a in &cfg.actions {
+        if let ActionSpec::Touch(p) = a {
+            outputs.push(Output {
+                flag: touch_flag,
+                path: p,
+                kind: OutputKind::Replaced,
+            });
+        }
+    }
+    if let Some(p) = events {
+        outputs.push(Output {
+            flag: "--events",
+            path: p,
+            kind: OutputKind::Appended,
+        });
+    }
+    let watched = Watched {
+        files: &[file],
+        patterns: &[],
+    };
+    check_outputs(&watched, &outputs)?;
+    Ok(())
+}
+
 /// Run `rhoscope guard`; returns the exit code.
 pub fn run(args: GuardArgs) -> anyhow::Result<i32> {
     let settings = Settings::load(&args.input, &args.file)?;
@@ -133,6 +172,7 @@ pub fn run(args: GuardArgs) -> anyhow::Result<i32> {
             .with_context(|| format!("cannot read '{}'", args.file.display()))?;
     }
     let (cfg, pid) = escalation_from_args(&args.actions, settings.actions.as_ref(), &args.file)?;
+    check_action_outputs(&args.file, &args.actions, &cfg, args.events.as_deref())?;
     let mut log = EventLog::open(args.events.as_deref(), !args.quiet)?;
     for n in &settings.notes {
         log.note(n);

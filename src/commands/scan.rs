@@ -25,7 +25,7 @@ pub fn run(args: ScanArgs) -> anyhow::Result<i32> {
         eprintln!("rhoscope: {note}");
     }
     let plot = match &args.plot {
-        Some(p) => Some(super::scan_plot::target(p)?),
+        Some(p) => Some(super::scan_plot::target(&args.file, p)?),
         None => None,
     };
     let progress = std::io::stderr().is_terminal();

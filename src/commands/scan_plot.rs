@@ -6,6 +6,7 @@ use std::path::{Path, PathBuf};
 use anyhow::{Context, anyhow};
 
 use crate::alarm::Level;
+use crate::outfile::{Output, OutputKind, Watched, check_outputs};
 use crate::report::ScanReport;
 use crate::report_plot::{ImageFormat, PlotCollector, render};
 use crate::settings::Settings;
@@ -18,8 +19,21 @@ const STATUS_SAMPLES: u64 = 4000;
 /// Bounds on the bytes fed between two samples.
 const SLICE_BYTES: (u64, u64) = (256, 1 << 20);
 
-/// Check the image path before reading anything: its extension picks the format.
-pub fn target(path: &Path) -> anyhow::Result<(PathBuf, ImageFormat)> {
+/// Check the image path before reading anything: its extension picks the
+/// format, and it must not be the history itself.
+pub fn target(history: &Path, path: &Path) -> anyhow::Result<(PathBuf, ImageFormat)> {
+    let watched = Watched {
+        files: &[history],
+        patterns: &[],
+    };
+    check_outputs(
+        &watched,
+        &[Output {
+            flag: "--plot",
+            path,
+            kind: OutputKind::Replaced,
+        }],
+    )?;
     let format = ImageFormat::from_path(path).ok_or_else(|| {
         anyhow!(
             "--plot '{}': the image name must end in .svg or .png",
@@ -75,19 +89,9 @@ pub fn scan_and_render(
     Ok((report, bytes))
 }
 
-/// Write `bytes` to `path` through a temporary file in the same directory and
-/// a rename, so a reader never sees half an image.
+/// Write `bytes` to `path` through the one hardened atomic writer, so a reader
+/// never sees half an image and a link at `path` is refused.
 fn write_replacing(path: &Path, bytes: &[u8]) -> anyhow::Result<()> {
-    let name = path
-        .file_name()
-        .ok_or_else(|| anyhow!("--plot '{}': not a file name", path.display()))?;
-    let mut tmp_name = std::ffi::OsString::from(".");
-    tmp_name.push(name);
-    tmp_name.push(format!(".{}.tmp", std::process::id()));
-    let tmp = path.with_file_name(tmp_name);
-    std::fs::write(&tmp, bytes).with_context(|| format!("{}: cannot write", tmp.display()))?;
-    std::fs::rename(&tmp, path).with_context(|| {
-        let _ = std::fs::remove_file(&tmp);
-        format!("{}: cannot write", path.display())
-    })
+    crate::outfile::write_atomic(path, bytes)
+        .with_context(|| format!("--plot '{}'", path.display()))
 }

@@ -17,7 +17,7 @@ use crate::app::run::{Pacing, StopActions, Ticker};
 use crate::app::{AppState, Config, StopState};
 use crate::cli::follow::POLL_DEFAULT;
 use crate::cli::watch::WatchArgs;
-use crate::commands::guard::escalation_from_args;
+use crate::commands::guard::{check_action_outputs, escalation_from_args};
 use crate::settings::Settings;
 use crate::source::{FollowConfig, Follower};
 use crate::tui;
@@ -134,6 +134,7 @@ pub fn run(args: WatchArgs) -> anyhow::Result<i32> {
     }
     let settings = Settings::load(&args.input, &args.file)?;
     let (cfg, pid) = escalation_from_args(&args.actions, settings.actions.as_ref(), &args.file)?;
+    check_action_outputs(&args.file, &args.actions, &cfg, args.events.as_deref())?;
     let log = EventLog::open(args.events.as_deref(), false)
         .with_context(|| "cannot open the event log".to_string())?;
     watch(args, settings, cfg, pid, log)

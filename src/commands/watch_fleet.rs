@@ -18,6 +18,7 @@ use crate::app::update::Msg;
 use crate::cli::follow::POLL_FLEET_DEFAULT;
 use crate::cli::watch::WatchArgs;
 use crate::fleet::{Fleet, FleetConfig, RunRow};
+use crate::outfile::{Output, OutputKind, Watched, check_outputs};
 use crate::tui;
 
 /// Latest rows and the monotonic seconds they were taken at, with a counter.
@@ -77,6 +78,19 @@ pub fn run(args: WatchArgs) -> anyhow::Result<i32> {
     }
     let mut patterns = vec![args.file.to_string_lossy().into_owned()];
     patterns.extend(args.more.iter().map(|p| p.to_string_lossy().into_owned()));
+    if let Some(p) = &args.events {
+        let pats: Vec<&str> = patterns.iter().map(String::as_str).collect();
+        let watched = Watched {
+            files: &[],
+            patterns: &pats,
+        };
+        let out = Output {
+            flag: "--events",
+            path: p,
+            kind: OutputKind::Appended,
+        };
+        check_outputs(&watched, &[out])?;
+    }
     let t0 = Instant::now();
     let cfg = FleetConfig {
         poll_interval: args

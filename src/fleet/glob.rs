@@ -69,6 +69,37 @@ fn match_from(p: &[char], n: &[char]) -> bool {
     p[pi..].iter().all(|&c| c == '*')
 }
 
+/// Would `pattern` name `path` (now or when the file appears)? Both are made
+/// absolute against the working directory, `.` and `..` taken lexically, then
+/// matched component by component, as [`expand`] walks them.
+pub fn path_matches(pattern: &str, path: &Path) -> bool {
+    let norm = |p: &Path| -> Option<Vec<String>> {
+        let abs = std::path::absolute(p).ok()?;
+        let mut parts = Vec::new();
+        for c in abs.components() {
+            match c {
+                std::path::Component::Normal(s) => parts.push(s.to_string_lossy().into_owned()),
+                std::path::Component::ParentDir => {
+                    parts.pop();
+                }
+                _ => {}
+            }
+        }
+        Some(parts)
+    };
+    let (Some(pat), Some(name)) = (norm(Path::new(pattern)), norm(path)) else {
+        return false;
+    };
+    pat.len() == name.len()
+        && pat.iter().zip(&name).all(|(p, n)| {
+            if has_wildcard(p) {
+                matches(p, n)
+            } else {
+                p == n
+            }
+        })
+}
+
 /// Match `c` against the class opening `p` (`[...]`): (matched, pattern length).
 /// `None` when the bracket is not closed (then it is a literal `[`).
 fn class(p: &[char], c: char) -> Option<(bool, usize)> {
@@ -198,6 +229,23 @@ mod tests {
         assert!(matches("a*b*c", "axxbyyc"));
         assert!(!matches("a*b*c", "axxbyy"));
         assert!(matches("*", "history.csv"));
+        assert!(path_matches("r*/history.csv", Path::new("r1/history.csv")));
+        assert!(path_matches(
+            "./r*/history.csv",
+            Path::new("r9/./history.csv")
+        ));
+        assert!(!path_matches(
+            "r*/history.csv",
+            Path::new("r1/metrics.prom")
+        ));
+        assert!(!path_matches(
+            "r*/history.csv",
+            Path::new("x/r1/history.csv")
+        ));
+        assert!(path_matches(
+            "r*/history.csv",
+            Path::new("x/../r2/history.csv")
+        ));
         assert!(!matches("*", ".hidden"), "a leading dot needs a dot");
         assert!(matches(".*", ".hidden"));
         assert!(matches("[]x]", "]"), "a ] first in a class is literal");

@@ -1,14 +1,13 @@
 //! The state of every followed run in the Prometheus text exposition format
 //! (version 0.0.4), for cluster monitoring: [`render`] builds the text from
-//! fleet rows (pure), [`write`] puts it in a file atomically for the node
-//! exporter's textfile collector, [`serve`] answers HTTP scrapes on a loopback
+//! fleet rows (pure), [`crate::outfile::write_atomic`] puts it in a file for the
+//! node exporter's textfile collector, [`serve`] answers HTTP scrapes on a loopback
 //! address. Names follow the format's conventions: one `# HELP` and one
 //! `# TYPE` line per metric family, base units in names (`_seconds`,
 //! `_bytes`, `_ratio`), `_total` on counters; every run is told apart by its
 //! `run` label.
 
 pub mod serve;
-pub mod write;
 
 use std::fmt::Write as _;
 
