@@ -7,14 +7,16 @@
 
 pub mod build;
 pub mod cases;
-pub mod cases_more;
 pub mod integrate;
+pub mod law;
 pub mod layout;
 pub mod live;
 
 pub mod model;
+pub mod omega;
 pub mod prng;
 pub mod run;
+pub mod setup;
 
 use std::io::{self, Write};
 use std::sync::OnceLock;

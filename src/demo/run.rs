@@ -13,166 +13,13 @@ use std::io::{self, Write};
 
 use nalgebra::{DMatrix, DVector};
 
-use super::integrate::{Dynamics, Scheme, State};
-use super::layout::{ColumnName, Layout};
-use super::model::Model;
+use super::integrate::{Dynamics, State};
+use super::layout::ColumnName;
+use super::omega::OmegaMax;
 use super::prng::SplitMix64;
-
-/// Tangent fingerprints that differ by less than this fraction of the largest
-/// member stiffness reuse the last ω_max outright (geometric stiffness drifts a
-/// little every step; ω then moves by a similar fraction, far inside any margin
-/// used by the cases); up to [`RAYLEIGH_REL`] the Rayleigh quotient of the last
-/// top eigenvector is used, whose error is second order in the change (Parlett,
-/// *The Symmetric Eigenvalue Problem*, 1980, ch. 4, from memory); beyond it a new
-/// eigen-solution is made.
-const REUSE_REL: f64 = 1e-5;
-const RAYLEIGH_REL: f64 = 2e-2;
-/// Eigen-solutions kept (contacts that open and close revisit a few tangents).
-const OMEGA_CACHE_LEN: usize = 8;
-
-/// One eigen-solution of the tangent.
-#[derive(Debug, Clone)]
-struct OmegaCache {
-    fingerprint: Vec<f64>,
-    omega: f64,
-    mode: DVector<f64>,
-}
-
-fn fp_change(a: &[f64], b: &[f64]) -> f64 {
-    if a.len() != b.len() {
-        return f64::INFINITY;
-    }
-    let scale = a.iter().fold(0.0_f64, |m, x| m.max(x.abs())).max(1e-300);
-    let d = a
-        .iter()
-        .zip(b)
-        .fold(0.0_f64, |m, (x, y)| m.max((x - y).abs()));
-    if d.is_nan() { f64::INFINITY } else { d / scale }
-}
-
-/// How the step size is chosen.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub enum StepRule {
-    /// A fixed step.
-    Fixed { dt_s: f64 },
-    /// dt = safety·2/ω_max of the current tangent, recomputed every step, capped at `dt_max_s`.
-    Adaptive { safety: f64, dt_max_s: f64 },
-}
-
-/// What a probe samples.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub enum Quantity {
-    Displacement,
-    Velocity,
-}
-
-/// A probe: one DOF's displacement or velocity, with its column name.
-#[derive(Debug, Clone, PartialEq)]
-pub struct Probe {
-    pub dof: usize,
-    pub quantity: Quantity,
-    pub name: ColumnName,
-}
-
-/// Which columns are written (time is always written).
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub enum Columns {
-    /// Time, step size, step number, probes, energies.
-    All,
-    /// Time and energies.
-    EnergyOnly,
-    /// Time and probes.
-    ProbesOnly,
-}
-
-/// A restart from an earlier checkpoint, as a user resubmitting a run would do.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct Restart {
-    /// Step at which the run is interrupted.
-    pub at_step: u64,
-    /// Step of the checkpoint it resumes from (earlier, so time goes back).
-    pub from_step: u64,
-    /// The step size is multiplied by this on resuming.
-    pub dt_factor: f64,
-    /// The resumed run writes its header again.
-    pub header_again: bool,
-}
-
-/// Seeded measurement noise added to printed probe values.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct Noise {
-    pub seed: u64,
-    /// Standard deviation of the noise (probe units).
-    pub sigma: f64,
-}
-
-/// Everything that defines one run.
-#[derive(Debug, Clone)]
-pub struct Setup {
-    /// First comment line.
-    pub title: String,
-    pub model: Model,
-    pub scheme: Scheme,
-    pub step: StepRule,
-    pub u0: Vec<f64>,
-    pub v0: Vec<f64>,
-    pub t_end_s: f64,
-    pub max_steps: u64,
-    /// A row every `every` steps (the first and a crashing row are always written).
-    pub every: u64,
-    pub layout: Layout,
-    pub columns: Columns,
-    pub probes: Vec<Probe>,
-    pub noise: Option<Noise>,
-    pub restart: Option<Restart>,
-    /// The solver gives up (writes the row and an error comment) when the step
-    /// falls below this, as solvers do when elements distort.
-    pub dt_min_s: Option<f64>,
-    /// Stop at the first row whose printed values or state are non-finite (true),
-    /// or only once the state holds a NaN (false), as a solver whose only check is
-    /// for NaN.
-    pub stop_on_printed_overflow: bool,
-}
-
-/// What the run found out about itself once finished.
-#[derive(Debug, Clone, PartialEq, Default)]
-pub struct Summary {
-    /// Lines written.
-    pub lines: u64,
-    /// Data rows written.
-    pub rows: u64,
-    /// First line at or after the step where ω_max·dt first exceeded the scheme's limit.
-    pub unstable_line: Option<u64>,
-    /// First line where the step fell below a tenth of its first value.
-    pub collapse_line: Option<u64>,
-    /// First line holding a non-finite or overflowed field.
-    pub crash_line: Option<u64>,
-    /// Largest |balance error| relative to the energy scale, over rows where the
-    /// scale had reached a tenth of its final value (the written columns only).
-    pub max_balance_rel: f64,
-    /// Balance error at the last finite row (same measure).
-    pub final_balance_rel: f64,
-    /// First line where |balance error| passed 5 % of the (established) scale.
-    pub drift_line: Option<u64>,
-    /// Smallest step over the first step.
-    pub min_dt_ratio: f64,
-    /// FNV-1a hash of the written bytes (lines with their newlines), for
-    /// checking that a rewrite gives the same file.
-    pub bytes_hash: u64,
-}
-
-/// FNV-1a over `bytes`, continuing from `h` (Fowler, Noll & Vo; offset basis
-/// 0xcbf29ce484222325, prime 0x100000001b3).
-pub fn fnv1a(mut h: u64, bytes: &[u8]) -> u64 {
-    for b in bytes {
-        h ^= u64::from(*b);
-        h = h.wrapping_mul(0x0100_0000_01b3);
-    }
-    h
-}
-
-/// FNV-1a offset basis.
-pub const FNV_OFFSET: u64 = 0xcbf2_9ce4_8422_2325;
+pub use super::setup::{
+    Columns, FNV_OFFSET, Noise, Probe, Quantity, Restart, Setup, StepRule, Summary, fnv1a,
+};
 
 #[derive(Debug, Clone)]
 struct Books {
@@ -210,9 +57,7 @@ pub struct Run {
     rng: SplitMix64,
     checkpoint: Option<Checkpoint>,
     restarted: bool,
-    omega_cache: Vec<OmegaCache>,
-    fingerprint: Vec<f64>,
-    inv_sqrt_mass: DVector<f64>,
+    omega: OmegaMax,
     unstable_pending: bool,
     summary: Summary,
     balance: Vec<(u64, f64, f64)>,
@@ -284,12 +129,7 @@ impl Run {
             rng: SplitMix64::new(seed),
             checkpoint: None,
             restarted: false,
-            omega_cache: Vec::new(),
-            fingerprint: Vec::new(),
-            inv_sqrt_mass: DVector::from_iterator(
-                n,
-                setup.model.mass_kg.iter().map(|m| 1.0 / m.sqrt()),
-            ),
+            omega: OmegaMax::new(&setup.model),
             unstable_pending: false,
             summary: Summary {
                 min_dt_ratio: 1.0,
@@ -436,48 +276,9 @@ impl Run {
         self.omega_at(&u)
     }
 
-    /// ω_max of the tangent at `u`. A full eigen-solution is made when the tangent
-    /// has moved by more than [`OMEGA_REUSE_REL`] of its norm since the last one;
-    /// in between, the Rayleigh quotient of the last top eigenvector is used, whose
-    /// error is second order in the change (Parlett, *The Symmetric Eigenvalue
-    /// Problem*, 1980, §4.6, from memory).
+    /// ω_max of the tangent at `u` (see [`OmegaMax`]).
     fn omega_at(&mut self, u: &DVector<f64>) -> f64 {
-        let model = &self.dynamics.model;
-        let mut fp = std::mem::take(&mut self.fingerprint);
-        model.fingerprint(u, &mut fp);
-        let changes: Vec<f64> = self
-            .omega_cache
-            .iter()
-            .map(|c| fp_change(&c.fingerprint, &fp))
-            .collect();
-        let best = changes
-            .iter()
-            .copied()
-            .enumerate()
-            .min_by(|a, b| a.1.total_cmp(&b.1));
-        let w = match best {
-            Some((i, d)) if d <= REUSE_REL => self.omega_cache[i].omega,
-            Some((i, d)) if d <= RAYLEIGH_REL => {
-                let y = self.omega_cache[i].mode.component_mul(&self.inv_sqrt_mass);
-                model.tangent_form(u, &y).max(0.0).sqrt()
-            }
-            _ => match model.top_mode(&model.tangent(u)) {
-                Some((w, x)) => {
-                    if self.omega_cache.len() >= OMEGA_CACHE_LEN {
-                        self.omega_cache.remove(0);
-                    }
-                    self.omega_cache.push(OmegaCache {
-                        fingerprint: fp.clone(),
-                        omega: w,
-                        mode: x,
-                    });
-                    w
-                }
-                None => f64::NAN,
-            },
-        };
-        self.fingerprint = fp;
-        w
+        self.omega.at(&self.dynamics.model, u)
     }
 
     fn next_dt(&mut self) -> f64 {

@@ -1,22 +1,23 @@
-//! More labelled cases: healthy traps (snap-through, impact, resonance, ramps,
-//! noise, an adaptive step that dips at contact, restarts), stable runs whose
-//! written energy balance drifts past 5 %, and the default demo scenario.
+//! Healthy traps (snap-through, impact, resonance, ramps, noise, an adaptive
+//! step that dips at contact, restarts), stable runs whose written energy
+//! balance drifts past 5 %, the default demo scenario and the violent stop.
 
 use nalgebra::DVector;
 
-use super::build::{
-    Truss, bridge, chain, disp, mast, omega_max0, omega_with_spring, setup, solve_increasing,
-    to_ground, vel,
-};
-use super::cases::{Spec, chain_ramp, chain_stop, modal_start, spec};
-use super::integrate::Scheme;
-use super::layout::Layout;
-use super::model::{Conn, Dashpot, Element, Law, Load, Model, Shape};
-use super::run::{Noise, Restart, Setup, StepRule};
+use super::families::{adaptive_dip_with, chain_ramp, chain_stop, impact, modal_start};
+use super::{Spec, spec};
 use crate::alarm::Level;
+use crate::demo::build::{
+    Truss, bridge, chain, disp, mast, modes, omega_max0, omega_with_spring, setup,
+    solve_increasing, stiffness0, to_ground, vel,
+};
+use crate::demo::integrate::Scheme;
+use crate::demo::layout::Layout;
+use crate::demo::model::{Conn, Dashpot, Element, Law, Load, Model, Shape};
+use crate::demo::run::{Noise, Restart, Setup, StepRule};
 
-/// The remaining cases in order.
-pub fn more() -> Vec<Spec> {
+/// The healthy traps, the drifts, the demo scenario and the violent stop, in order.
+pub fn specs() -> Vec<Spec> {
     use Level::{Critical, Ok, Warning};
     vec![
         spec(
@@ -110,7 +111,7 @@ pub fn more() -> Vec<Spec> {
             initial_penetration,
         ),
         spec(
-            super::DEMO_SCENARIO,
+            crate::demo::DEMO_SCENARIO,
             Critical,
             "braced mast swaying in a gusting lateral load; central difference at a fixed step; midway its top reaches a clearance collar that latches, and the step exceeds the new limit",
             demo_tower,
@@ -208,40 +209,13 @@ fn softening_ramp() -> Setup {
     s
 }
 
-fn impact() -> Setup {
-    let mut m = chain(8, 1.0, 1.0e4);
-    m.mass_damping_per_s = 0.3;
-    m.loads.push(Load {
-        dof: 7,
-        amp_n: 800.0,
-        shape: Shape::HalfSine {
-            start_s: 0.3,
-            duration_s: 0.12,
-        },
-    });
-    let dt = 0.9 * 2.0 / omega_max0(&m);
-    let mut s = setup(
-        "invented case: eight-mass chain struck at the tip",
-        m,
-        Scheme::CentralDifference,
-        StepRule::Fixed { dt_s: dt },
-        6.0,
-    );
-    s.every = 2;
-    s.probes = vec![
-        disp(0, "u1", "displacement mass 1"),
-        disp(7, "u8", "tip displacement"),
-    ];
-    s
-}
-
 fn impact_chain() -> Setup {
     impact()
 }
 
 fn resonance() -> Setup {
     let mut m = chain(3, 1.0, 1.0e4);
-    let ms = super::build::modes(&m, &DVector::zeros(3));
+    let ms = modes(&m, &DVector::zeros(3));
     let w1 = ms[0].0;
     m.loads.push(Load {
         dof: 2,
@@ -266,7 +240,7 @@ fn resonance() -> Setup {
 fn bridge_ramp_hht() -> Setup {
     let mut t = bridge(6, 2.0, 2.0, 2.0e7, 50.0);
     let dy = t.dof(3, 1);
-    let ms = super::build::modes(&t.model, &DVector::zeros(t.model.n()));
+    let ms = modes(&t.model, &DVector::zeros(t.model.n()));
     let period = 2.0 * std::f64::consts::PI / ms[0].0;
     t.model.loads.push(Load {
         dof: dy,
@@ -332,31 +306,6 @@ fn leaky_contact() -> Setup {
     s
 }
 
-/// The contact-dip chain with a given step safety factor, contact stiffness,
-/// clearance and damping.
-pub(crate) fn adaptive_dip_with(safety: f64, k_c: f64, gap: f64, damping: f64) -> Setup {
-    let mut m = chain(3, 1.0, 1.0e4);
-    m.elements
-        .push(to_ground(2, Law::Contact { gap, k: k_c }, true));
-    m.mass_damping_per_s = damping;
-    let mut s = setup(
-        "invented case: chain thrown against a stiff one-sided contact",
-        m,
-        Scheme::CentralDifference,
-        StepRule::Adaptive {
-            safety,
-            dt_max_s: 1.0,
-        },
-        3.0,
-    );
-    s.v0 = vec![-1.0, -2.0, -3.0];
-    s.probes = vec![
-        disp(2, "u3", "tip displacement"),
-        vel(2, "v3", "tip velocity"),
-    ];
-    s
-}
-
 fn restart_header() -> Setup {
     let mut s = chain_ramp(6.0);
     s.restart = Some(Restart {
@@ -384,7 +333,7 @@ fn mast_rk4() -> Setup {
     let mut t = mast(4, 1.0, 1.5, 5.0e6, 20.0);
     let top = t.dof(8, 0);
     let w0 = omega_max0(&t.model);
-    let ms = super::build::modes(&t.model, &DVector::zeros(t.model.n()));
+    let ms = modes(&t.model, &DVector::zeros(t.model.n()));
     t.model.mass_damping_per_s = 0.05 * ms[0].0;
     t.model.loads.push(Load {
         dof: top,
@@ -462,7 +411,7 @@ fn hidden_damper() -> Setup {
 
 fn backward_euler_decay() -> Setup {
     let m = chain(3, 1.0, 1.0e4);
-    let ms = super::build::modes(&m, &DVector::zeros(3));
+    let ms = modes(&m, &DVector::zeros(3));
     let period = 2.0 * std::f64::consts::PI / ms[0].0;
     let u0 = modal_start(&m, 0.01, 0.0);
     let mut s = setup(
@@ -533,7 +482,7 @@ pub fn demo_tower() -> Setup {
     let mut m = chain(storeys, 200.0, 2.0e7);
     let top = storeys - 1;
     let dt = 0.9 * 2.0 / omega_max0(&m);
-    let ms = super::build::modes(&m, &DVector::zeros(m.n()));
+    let ms = modes(&m, &DVector::zeros(m.n()));
     let w1 = ms[0].0;
     let k = solve_increasing(
         |k| omega_with_spring(&m, top, k) * dt,
@@ -543,7 +492,7 @@ pub fn demo_tower() -> Setup {
     );
     // Static sway under the full mean load, to place the collar's clearance.
     let mean = 3.0e4;
-    let k0 = super::build::stiffness0(&m);
+    let k0 = stiffness0(&m);
     let mut f = DVector::zeros(m.n());
     f[top] = mean;
     let sway = k0.lu().solve(&f).map_or(0.01, |x| x[top]);

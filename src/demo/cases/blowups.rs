@@ -1,51 +1,19 @@
-//! The labelled cases: each an invented structure, a scheme and a step, a load
-//! history and a file layout. Levels are declared from the physics of the run
-//! (numerical blow-up, energy drift, or healthy) and checked against what the
-//! simulation measures about itself; onset and crash lines come from the run.
+//! Blow-ups of invented structures: a step past the limit once a stop or guard
+//! closes, schemes run past their limits, a tiny seeded high mode, a NaN out
+//! of a tabulated law, a collapsing step, and the same runs in other layouts
+//! and column sets; plus the plain healthy ramp they are set against.
 
-use nalgebra::DVector;
-
-use super::build::{
-    bridge, chain, disp, modes, omega_max0, omega_with_spring, setup, solve_increasing, to_ground,
-    vel,
-};
-use super::integrate::Scheme;
-use super::layout::Layout;
-use super::model::{Law, Load, Shape};
-use super::run::{Columns, Setup, StepRule};
+use super::families::{bridge_guide, chain_ramp, chain_stop, modal_start};
+use super::{Spec, spec};
 use crate::alarm::Level;
+use crate::demo::build::{chain, disp, omega_max0, omega_with_spring, setup, to_ground, vel};
+use crate::demo::integrate::Scheme;
+use crate::demo::layout::Layout;
+use crate::demo::model::{Law, Load, Shape};
+use crate::demo::run::{Columns, Setup, StepRule};
 
-/// A case before it is labelled.
-#[derive(Debug, Clone, Copy)]
-pub struct Spec {
-    pub name: &'static str,
-    pub description: &'static str,
-    pub level: Level,
-    pub build: fn() -> Setup,
-}
-
-/// The catalogue's cases in order.
+/// The blow-ups of the first catalogue and its plain healthy ramp, in order.
 pub fn specs() -> Vec<Spec> {
-    let mut v = first();
-    v.extend(super::cases_more::more());
-    v
-}
-
-pub(crate) fn spec(
-    name: &'static str,
-    level: Level,
-    description: &'static str,
-    build: fn() -> Setup,
-) -> Spec {
-    Spec {
-        name,
-        description,
-        level,
-        build,
-    }
-}
-
-fn first() -> Vec<Spec> {
     use Level::{Critical, Ok};
     vec![
         spec(
@@ -143,40 +111,6 @@ fn first() -> Vec<Spec> {
 
 // ---------------------------------------------------------------- chains
 
-/// Six-mass chain, free-limit step ×0.9, a two-sided stop at the tip whose
-/// stiffness makes ω_max·dt = `omega_closed` once closed.
-pub(crate) fn chain_stop(omega_closed: f64) -> Setup {
-    let mut m = chain(6, 2.0, 8.0e4);
-    let dt = 0.9 * 2.0 / omega_max0(&m);
-    let tip = 5;
-    let k = solve_increasing(
-        |k| omega_with_spring(&m, tip, k) * dt,
-        omega_closed,
-        1.0,
-        1e12,
-    );
-    m.elements
-        .push(to_ground(tip, Law::Stop { gap: 0.03, k }, true));
-    m.loads.push(Load {
-        dof: tip,
-        amp_n: 900.0,
-        shape: Shape::Ramp { rise_s: 4.0 },
-    });
-    let mut s = setup(
-        "invented case: six-mass spring chain pushed by a ramp onto a clearance stop",
-        m,
-        Scheme::CentralDifference,
-        StepRule::Fixed { dt_s: dt },
-        20.0,
-    );
-    s.probes = vec![
-        disp(2, "u3", "displacement mass 3"),
-        disp(5, "u6", "displacement mass 6"),
-        vel(5, "v6", "velocity mass 6"),
-    ];
-    s
-}
-
 fn chain_stop_csv() -> Setup {
     chain_stop(2.02)
 }
@@ -205,40 +139,6 @@ fn chain_ramp_ok() -> Setup {
     let mut s = chain_ramp(8.0);
     s.probes.insert(0, disp(2, "u3", "displacement mass 3"));
     s
-}
-
-/// Six-mass chain under a slow ramp, lightly damped, central difference at 0.9
-/// of its limit, rows every 2 steps.
-pub(crate) fn chain_ramp(t_end_s: f64) -> Setup {
-    let mut m = chain(6, 2.0, 8.0e4);
-    m.mass_damping_per_s = 0.5;
-    let dt = 0.9 * 2.0 / omega_max0(&m);
-    m.loads.push(Load {
-        dof: 5,
-        amp_n: 900.0,
-        shape: Shape::Ramp { rise_s: 4.0 },
-    });
-    let mut s = setup(
-        "invented case: six-mass spring chain under a slow ramp, lightly damped",
-        m,
-        Scheme::CentralDifference,
-        StepRule::Fixed { dt_s: dt },
-        t_end_s,
-    );
-    s.every = 2;
-    s.probes = vec![disp(5, "u6", "displacement mass 6")];
-    s
-}
-
-/// Initial displacement: `a1` times the first mode plus `ah` times the highest.
-pub(crate) fn modal_start(m: &super::model::Model, a1: f64, ah: f64) -> Vec<f64> {
-    let ms = modes(m, &DVector::zeros(m.n()));
-    let (first, last) = (&ms[0].1, &ms[ms.len() - 1].1);
-    first
-        .iter()
-        .zip(last)
-        .map(|(p, q)| a1 * p + ah * q)
-        .collect()
 }
 
 fn chain_at_omega(n: usize, omega_dt: f64, scheme: Scheme, t_end_s: f64) -> Setup {
@@ -368,55 +268,6 @@ fn crush_collapse() -> Setup {
 }
 
 // ---------------------------------------------------------------- bridge
-
-/// Six-panel bridge with a two-sided guide under the mid-span node, closing at
-/// half the static deflection; guide stiffness gives ω_max·dt = `omega_closed`.
-pub(crate) fn bridge_guide(omega_closed: f64) -> Setup {
-    let mut t = bridge(6, 2.0, 2.0, 2.0e7, 50.0);
-    let dy = t.dof(3, 1);
-    let w0 = omega_max0(&t.model);
-    let dt = 0.9 * 2.0 / w0;
-    let load = -2.0e5;
-    // Static deflection of the mid-span node under the full load (linear).
-    let k0 = super::build::stiffness0(&t.model);
-    let mut f = DVector::zeros(t.model.n());
-    f[dy] = load;
-    let static_dy = k0.lu().solve(&f).map_or(-0.01, |x| x[dy]);
-    let k = solve_increasing(
-        |k| omega_with_spring(&t.model, dy, k) * dt,
-        omega_closed,
-        1.0,
-        1e13,
-    );
-    t.model.elements.push(to_ground(
-        dy,
-        Law::Stop {
-            gap: 0.5 * static_dy.abs(),
-            k,
-        },
-        true,
-    ));
-    t.model.loads.push(Load {
-        dof: dy,
-        amp_n: load,
-        shape: Shape::Ramp { rise_s: 0.8 },
-    });
-    t.model.mass_damping_per_s = 0.2;
-    let mut s = setup(
-        "invented case: six-panel bridge truss, mid-span ramp load, clearance guide below mid-span",
-        t.model.clone(),
-        Scheme::CentralDifference,
-        StepRule::Fixed { dt_s: dt },
-        10.0,
-    );
-    s.probes = vec![
-        disp(dy, "uy_mid", "mid-span deflection"),
-        disp(t.dof(8, 1), "uy_top", "top chord deflection"),
-        disp(t.dof(6, 0), "ux_end", "roller displacement"),
-    ];
-    s.every = 2;
-    s
-}
 
 fn bridge_guide_default() -> Setup {
     let mut s = bridge_guide(2.05);
