@@ -21,6 +21,7 @@ pub mod parse;
 pub mod pipeline;
 pub mod report;
 pub mod report_plot;
+pub mod scale;
 pub mod schemes;
 pub mod settings;
 pub mod source;

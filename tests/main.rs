@@ -16,6 +16,7 @@ mod scan_cli;
 mod tmux_support;
 mod ui_dashboard;
 mod ui_demo;
+mod ui_extremes;
 mod ui_support;
 mod ui_tmux;
 mod ui_tmux_fleet;

@@ -10,6 +10,7 @@ use plotters::prelude::*;
 use plotters::style::FontStyle;
 
 use super::{Marker, MarkerKind, PlotData, PlotError, Series};
+use crate::scale::Scale;
 
 /// Font for text in bitmaps (SVG text names the family and lets the viewer draw it).
 const FONT_BYTES: &[u8] = include_bytes!("../../assets/fonts/DejaVuSans-subset.ttf");
@@ -107,63 +108,6 @@ fn tick_short(v: f64) -> String {
     }
 }
 
-/// How a panel maps y values: plain (times a factor), log10, or symmetric log.
-#[derive(Clone, Copy)]
-enum Scale {
-    Linear(f64),
-    Log,
-    /// sign(y)·log10(1 + |y|/c): linear near zero, logarithmic far out, for
-    /// signed data spanning many decades (Webber, "A bi-symmetric log
-    /// transformation for wide-range data", Meas. Sci. Technol. 24, 2013).
-    SymLog(f64),
-}
-
-impl Scale {
-    fn map(self, y: f64) -> Option<f64> {
-        match self {
-            Scale::Linear(k) => Some(y * k),
-            Scale::Log => (y > 0.0).then(|| y.log10()),
-            Scale::SymLog(c) => Some(y.signum() * (y.abs() / c).ln_1p() / std::f64::consts::LN_10),
-        }
-    }
-
-    /// Back from axis units to data units, for tick labels.
-    fn unmap(self, t: f64) -> f64 {
-        match self {
-            Scale::Linear(k) => t / k,
-            Scale::Log => 10f64.powf(t),
-            Scale::SymLog(c) => t.signum() * c * (10f64.powf(t.abs()) - 1.0),
-        }
-    }
-
-    /// Linear unless the values span more than `decades`: then log10 when all
-    /// are positive, else symmetric log about the median magnitude.
-    fn choose(series: &[&Series], decades: f64) -> Scale {
-        let mut mags: Vec<f64> = series
-            .iter()
-            .flat_map(|s| s.points.iter().map(|p| p.1))
-            .filter(|y| y.is_finite())
-            .collect();
-        let all_positive = mags.iter().all(|&y| y > 0.0);
-        mags.iter_mut().for_each(|y| *y = y.abs());
-        mags.retain(|&y| y > 0.0);
-        if mags.is_empty() {
-            return Scale::Linear(1.0);
-        }
-        mags.sort_by(f64::total_cmp);
-        let (lo, hi) = (mags[0], mags[mags.len() - 1]);
-        let median = mags[mags.len() / 2];
-        if all_positive && (hi / lo).log10() > decades {
-            Scale::Log
-        } else if (hi / median).log10() > decades {
-            // A power of ten, so ticks at whole axis units read as round numbers.
-            Scale::SymLog(10f64.powf(median.log10().round()))
-        } else {
-            Scale::Linear(1.0)
-        }
-    }
-}
-
 /// Grey level, width and dash of the i-th line of a panel: told apart without colour.
 fn line_style(i: usize) -> (RGBColor, u32, bool) {
     match i % 5 {
@@ -222,9 +166,9 @@ fn page<DB: DrawingBackend>(
     let areas = body.split_by_breakpoints::<u32, u32, _, _>([], cuts);
     let xr = x_range(data);
     let energies: Vec<&Series> = data.energies.iter().collect();
-    let e_scale = Scale::choose(&energies, 4.0);
+    let e_scale = Scale::choose(ys(&energies), 4.0);
     let probes: Vec<&Series> = data.probes.iter().collect();
-    let p_scale = Scale::choose(&probes, 4.0);
+    let p_scale = Scale::choose(ys(&probes), 4.0);
     let e_unit = energies.iter().find_map(|s| s.unit.clone());
     let panels: [Panel; 5] = [
         Panel {
@@ -283,6 +227,11 @@ fn common_unit(series: &[Series]) -> Option<&str> {
         .then_some(first)
 }
 
+/// The y values of some series.
+fn ys<'a>(series: &'a [&Series]) -> impl Iterator<Item = f64> + 'a {
+    series.iter().flat_map(|s| s.points.iter().map(|p| p.1))
+}
+
 fn axis_desc(what: &str, unit: Option<&str>, scale: Scale) -> String {
     let u = unit.map(|u| format!(" [{u}]")).unwrap_or_default();
     match scale {
@@ -294,7 +243,7 @@ fn axis_desc(what: &str, unit: Option<&str>, scale: Scale) -> String {
 
 fn step_panel(data: &PlotData) -> Panel<'_> {
     let series: Vec<&Series> = data.step.iter().collect();
-    let scale = Scale::choose(&series, 2.0);
+    let scale = Scale::choose(ys(&series), 2.0);
     let (name, unit) = data.step.as_ref().map_or(("time step Δt", None), |s| {
         (s.name.as_str(), s.unit.as_deref())
     });

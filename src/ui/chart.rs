@@ -1,18 +1,30 @@
 //! A line chart of already downsampled series over the shared x window, with an
 //! optional horizontal reference line (ρ = 1, zero balance error). Panels build
-//! their series; this draws them.
+//! their series; this draws them. Every value passes [`crate::scale::fit`]
+//! first (finite, clamped, symmetric log where the values span decades), so
+//! the chart widget sees only coordinates in the unit square and a frame costs
+//! at most [`MAX_SERIES`] series of the points the panel passed (the panels
+//! pass at most two per column of the plot). The legend sits on the bottom
+//! border; without colour the series differ by marker as well.
 
 use ratatui::Frame;
 use ratatui::layout::{Alignment, Rect};
 use ratatui::style::Style;
 use ratatui::symbols::Marker;
 use ratatui::text::{Line, Span};
-use ratatui::widgets::{
-    Axis, Block, Borders, Chart, Dataset, GraphType, LegendPosition, Paragraph,
-};
+use ratatui::widgets::{Axis, Block, Borders, Chart, Dataset, GraphType, Paragraph};
+
+use crate::scale::{Fitted, fit};
 
 use super::format::{axis_labels, num};
 use super::theme::Theme;
+
+/// Most series drawn in one chart; the legend counts the rest.
+pub const MAX_SERIES: usize = 8;
+/// Values spanning more decades than this go on a symmetric log axis.
+pub const DECADES: f64 = 4.0;
+/// Plot rows from which a non-linear axis also labels its middle.
+const MID_LABEL_ROWS: u16 = 7;
 
 /// One series to draw.
 pub struct Series {
@@ -36,36 +48,55 @@ pub struct Spec<'a> {
     pub empty: &'a str,
 }
 
-/// y range of the points and the reference, padded by 5 %.
-fn y_bounds(series: &[Series], reference: Option<f64>) -> Option<(f64, f64)> {
-    let mut lo = f64::INFINITY;
-    let mut hi = f64::NEG_INFINITY;
-    for (_, y) in series.iter().flat_map(|s| s.points.iter()) {
-        lo = lo.min(*y);
-        hi = hi.max(*y);
-    }
-    if lo > hi {
-        return None;
-    }
-    if let Some(r) = reference {
-        lo = lo.min(r);
-        hi = hi.max(r);
-    }
-    let pad = if hi > lo {
-        0.05 * (hi - lo)
+/// A series' legend name: what it is, and the column it comes from when that
+/// says something more and there is room.
+pub fn legend_name(what: &str, column: &str, room: bool) -> String {
+    if room && !column.eq_ignore_ascii_case(what) {
+        format!("{what} ({column})")
     } else {
-        0.01 * hi.abs().max(1e-300)
-    };
-    Some((lo - pad, hi + pad))
+        what.to_string()
+    }
 }
 
-/// Draw a chart in `area` (bordered, titled).
+/// The series' points taken into the unit square (see [`crate::scale::fit`]),
+/// at most [`MAX_SERIES`] of them: the chart data path, on its own for tests.
+pub fn fitted(spec: &Spec) -> Option<Fitted> {
+    let pts: Vec<&[(f64, f64)]> = spec
+        .series
+        .iter()
+        .take(MAX_SERIES)
+        .map(|s| s.points.as_slice())
+        .collect();
+    fit(&pts, spec.reference.map(|r| r.0), spec.x, DECADES)
+}
+
+/// The legend on the bottom border: a glyph per series (its marker without
+/// colour) and its name.
+fn legend<'a>(spec: &Spec, theme: &Theme) -> Line<'a> {
+    let mut spans = vec![Span::raw(" ")];
+    if let Some((_, name)) = spec.reference {
+        spans.push(Span::styled(format!("── {name} "), theme.reference()));
+    }
+    for (n, s) in spec.series.iter().take(MAX_SERIES).enumerate() {
+        let (_, glyph) = theme.marker(n);
+        spans.push(Span::styled(format!("{glyph} {} ", s.name), s.style));
+    }
+    if spec.series.len() > MAX_SERIES {
+        spans.push(Span::styled(
+            format!("+{} more not drawn ", spec.series.len() - MAX_SERIES),
+            theme.dim(),
+        ));
+    }
+    Line::from(spans)
+}
+
+/// Draw a chart in `area` (bordered, titled, legend on the bottom border).
 pub fn draw(f: &mut Frame, area: Rect, spec: Spec, theme: &Theme) {
-    let block = Block::default()
-        .borders(Borders::ALL)
-        .border_style(theme.border())
-        .title(spec.title);
-    let Some((ylo, yhi)) = y_bounds(&spec.series, spec.reference.map(|r| r.0)) else {
+    let Some(fitted) = fitted(&spec) else {
+        let block = Block::default()
+            .borders(Borders::ALL)
+            .border_style(theme.border())
+            .title(spec.title);
         f.render_widget(
             Paragraph::new(Span::styled(spec.empty, theme.dim()))
                 .alignment(Alignment::Center)
@@ -74,34 +105,44 @@ pub fn draw(f: &mut Frame, area: Rect, spec: Spec, theme: &Theme) {
         );
         return;
     };
-    let reference_pts: Vec<(f64, f64)> = spec
+    let mut title = spec.title.clone();
+    if let Some(w) = fitted.scale.word() {
+        title
+            .spans
+            .push(Span::styled(format!("· {w} axis "), theme.dim()));
+    }
+    let block = Block::default()
+        .borders(Borders::ALL)
+        .border_style(theme.border())
+        .title(title)
+        .title_bottom(legend(&spec, theme));
+    let reference_pts: Vec<(f64, f64)> = fitted
         .reference
-        .map(|(y, _)| vec![(spec.x.0, y), (spec.x.1, y)])
+        .map(|y| vec![(0.0, y), (1.0, y)])
         .unwrap_or_default();
     let mut sets: Vec<Dataset> = Vec::new();
-    if let Some((_, name)) = spec.reference {
+    if !reference_pts.is_empty() {
         sets.push(
             Dataset::default()
-                .name(name.to_string())
                 .marker(Marker::Braille)
                 .graph_type(GraphType::Line)
                 .style(theme.reference())
                 .data(&reference_pts),
         );
     }
-    for s in &spec.series {
+    for (n, (s, pts)) in spec.series.iter().zip(&fitted.series).enumerate() {
+        let (marker, _) = theme.marker(n);
         sets.push(
             Dataset::default()
-                .name(s.name.clone())
-                .marker(Marker::Braille)
+                .marker(marker)
                 .graph_type(GraphType::Line)
                 .style(s.style)
-                .data(&s.points),
+                .data(pts),
         );
     }
     let x_axis = if spec.x_labels {
         Axis::default()
-            .bounds([spec.x.0, spec.x.1])
+            .bounds([0.0, 1.0])
             .style(theme.dim())
             .title(Span::styled(spec.x_name.to_string(), theme.dim()))
             .labels([
@@ -109,17 +150,28 @@ pub fn draw(f: &mut Frame, area: Rect, spec: Spec, theme: &Theme) {
                 Span::raw(num(Some(spec.x.1), 4)),
             ])
     } else {
-        Axis::default().bounds([spec.x.0, spec.x.1])
+        Axis::default().bounds([0.0, 1.0])
+    };
+    let [lo, mid, hi] = fitted.y_labels;
+    let [lo_s, hi_s] = axis_labels(lo, hi);
+    let plot_rows = area.height.saturating_sub(2 + u16::from(spec.x_labels) * 2);
+    let labels: Vec<Span> = if fitted.scale.word().is_some() && plot_rows >= MID_LABEL_ROWS {
+        vec![
+            Span::raw(lo_s),
+            Span::raw(num(Some(mid), 2)),
+            Span::raw(hi_s),
+        ]
+    } else {
+        vec![Span::raw(lo_s), Span::raw(hi_s)]
     };
     let y_axis = Axis::default()
-        .bounds([ylo, yhi])
+        .bounds([0.0, 1.0])
         .style(theme.dim())
-        .labels(axis_labels(ylo, yhi).map(Span::raw));
-    let legend = (area.height >= 8 && area.width >= 50).then_some(LegendPosition::TopLeft);
+        .labels(labels);
     let chart = Chart::new(sets)
         .block(block)
         .x_axis(x_axis)
         .y_axis(y_axis)
-        .legend_position(legend);
+        .legend_position(None);
     f.render_widget(chart, area);
 }

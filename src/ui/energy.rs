@@ -9,7 +9,7 @@ use crate::alarm::Level;
 use crate::app::AppState;
 use crate::parse::roles::EnergyTerm;
 
-use super::chart::{self, Series, Spec};
+use super::chart::{self, Series, Spec, legend_name};
 use super::format::pct;
 use super::growth::{empty_spec, x_name};
 use super::theme::{Theme, symbol};
@@ -52,7 +52,7 @@ pub fn chart(f: &mut Frame, area: Rect, s: &AppState, t: &Theme, x_labels: bool)
         .iter()
         .enumerate()
         .map(|(n, (col, term))| Series {
-            name: format!("{} ({})", term_name(*term), s.column_name(*col)),
+            name: legend_name(term_name(*term), s.column_name(*col), area.width >= 100),
             points: s.table.points(*col, x.0, x.1, width),
             style: t.series(n),
         })

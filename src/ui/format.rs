@@ -27,7 +27,9 @@ pub fn num(v: Option<f64>, sig: usize) -> String {
 pub fn pct(frac: Option<f64>) -> String {
     match frac {
         Some(f) if f.is_finite() && (100.0 * f).abs() < 0.005 => "0.00 %".into(),
-        Some(f) if f.is_finite() => format!("{:+.2} %", 100.0 * f),
+        Some(f) if f.is_finite() && (100.0 * f).abs() < 1e5 => format!("{:+.2} %", 100.0 * f),
+        // Past 10⁵ % (or overflowing when scaled) in scientific notation.
+        Some(f) if f.is_finite() => format!("{:+.2e} %", 100.0 * f),
         Some(_) => "NaN".into(),
         None => "—".into(),
     }
@@ -99,6 +101,8 @@ mod tests {
         assert_eq!(num(Some(f64::NAN), 3), "NaN");
         assert_eq!(pct(Some(0.0123)), "+1.23 %");
         assert_eq!(pct(Some(-1e-7)), "0.00 %");
+        assert_eq!(pct(Some(1e300)), "+1.00e302 %");
+        assert_eq!(pct(Some(f64::MAX)), "+inf %");
         assert_eq!(hz(Some(50_000.0)), "50.00 kHz");
         let [a, b] = axis_labels(0.99997, 1.00001);
         assert_ne!(a, b);

@@ -10,7 +10,7 @@ use crate::app::AppState;
 use crate::history::trend::relative_change_per_unit;
 use crate::parse::roles::Role;
 
-use super::chart::{self, Series, Spec};
+use super::chart::{self, Series, Spec, legend_name};
 use super::format::{num, pct};
 use super::growth::{empty_spec, x_name};
 use super::theme::Theme;
@@ -63,7 +63,7 @@ pub fn chart(f: &mut Frame, area: Rect, s: &AppState, t: &Theme, x_labels: bool)
     let spec = Spec {
         title,
         series: vec![Series {
-            name: format!("dt ({})", s.column_name(col)),
+            name: legend_name("dt", s.column_name(col), area.width >= 100),
             points,
             style: t.series(2),
         }],

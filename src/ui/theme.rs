@@ -3,6 +3,7 @@
 //! well, so the plain set loses nothing but tint.
 
 use ratatui::style::{Color, Modifier, Style};
+use ratatui::symbols::Marker;
 
 use crate::alarm::Level;
 
@@ -90,6 +91,21 @@ impl Theme {
             Color::White,
         ];
         Style::default().fg(C[n % C.len()])
+    }
+
+    /// Marker of the n-th data series and the glyph that stands for it in the
+    /// legend: a coloured line with colour, distinct markers without it.
+    pub fn marker(&self, n: usize) -> (Marker, &'static str) {
+        if self.color {
+            return (Marker::Braille, "━━");
+        }
+        const M: [(Marker, &str); 4] = [
+            (Marker::Braille, "⣿⣿"),
+            (Marker::Dot, "••"),
+            (Marker::Bar, "▄▄"),
+            (Marker::Block, "██"),
+        ];
+        M[n % M.len()]
     }
 
     /// The reference line of a chart (ρ = 1, zero balance error).
