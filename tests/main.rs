@@ -15,6 +15,7 @@ mod real_solvers;
 mod report_plot;
 mod scan_cli;
 mod tmux_support;
+mod ui_actions;
 mod ui_dashboard;
 mod ui_demo;
 mod ui_extremes;

@@ -37,6 +37,9 @@ pub struct Batch {
     pub status: Option<Status>,
     /// Monotonic seconds when the chunk was read (live only).
     pub arrival_s: Option<f64>,
+    /// Rows read and run through the detectors but left out of this batch
+    /// because the loop fell behind (see [`Batch::drop_rows`]).
+    pub undrawn_rows: u64,
 }
 
 impl Batch {
@@ -56,9 +59,36 @@ impl Batch {
         self.values.get(start..start + len).unwrap_or(&[])
     }
 
+    /// Append a later batch: its items after these, its estimates and arrival
+    /// replacing these.
+    pub fn append(&mut self, later: Batch) {
+        let offset = self.values.len();
+        self.values.extend_from_slice(&later.values);
+        self.items.extend(later.items.into_iter().map(|i| match i {
+            Item::Row { line, start, len } => Item::Row {
+                line,
+                start: start + offset,
+                len,
+            },
+            other => other,
+        }));
+        self.status = later.status.or(self.status.take());
+        self.arrival_s = later.arrival_s.or(self.arrival_s);
+        self.undrawn_rows += later.undrawn_rows;
+    }
+
+    /// Leave the rows out (keeping schemas, segments, skips and alarms) and
+    /// count them in `undrawn_rows`.
+    pub fn drop_rows(&mut self) {
+        let before = self.items.len();
+        self.items.retain(|i| !matches!(i, Item::Row { .. }));
+        self.undrawn_rows += (before - self.items.len()) as u64;
+        self.values = Vec::new();
+    }
+
     /// Nothing in it.
     pub fn is_empty(&self) -> bool {
-        self.items.is_empty() && self.status.is_none()
+        self.items.is_empty() && self.status.is_none() && self.undrawn_rows == 0
     }
 }
 impl crate::pipeline::PipelineSink for Batch {
@@ -83,5 +113,42 @@ impl crate::pipeline::PipelineSink for Batch {
             line,
             reason: reason.clone(),
         });
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn rows_of(b: &Batch) -> Vec<(u64, Vec<f64>)> {
+        b.items
+            .iter()
+            .filter_map(|i| match i {
+                Item::Row { line, start, len } => {
+                    Some((*line, b.row_values(*start, *len).to_vec()))
+                }
+                _ => None,
+            })
+            .collect()
+    }
+
+    #[test]
+    fn appended_batches_keep_their_rows_and_dropped_rows_are_counted() {
+        let mut a = Batch::default();
+        a.push_row(2, &[1.0, 2.0]);
+        let mut b = Batch::default();
+        b.push_row(3, &[3.0, 4.0]);
+        b.items.push(Item::Segment {
+            line: 4,
+            reason: SegmentReason::NewHeader,
+        });
+        b.arrival_s = Some(7.0);
+        a.append(b);
+        assert_eq!(rows_of(&a), vec![(2, vec![1.0, 2.0]), (3, vec![3.0, 4.0])]);
+        assert_eq!(a.arrival_s, Some(7.0));
+        a.drop_rows();
+        assert!(rows_of(&a).is_empty());
+        assert_eq!((a.items.len(), a.undrawn_rows), (1, 2));
+        assert!(!a.is_empty());
     }
 }

@@ -3,10 +3,16 @@
 //! [`Pipeline`] and sends what came out as [`Msg::Data`] batches of at most
 //! [`CHUNK_BYTES`] of input each, so a large backlog arrives as many small
 //! messages the loop can interleave with keys and frames. Alarms can also be
-//! passed to an observer (the event log) on this thread.
+//! passed to an observer (the event log, the armed actions) on this thread.
+//! It never waits on the loop: while the loop's channel is full (a slow or
+//! stuck frame) batches are merged and held, the file is read on and every
+//! row still goes through the detectors, so alarms keep reaching the
+//! observer; past [`HELD_VALUES_MAX`] held values the rows are left undrawn
+//! (and counted) rather than held.
 
+use std::collections::VecDeque;
 use std::sync::atomic::Ordering;
-use std::sync::mpsc::SyncSender;
+use std::sync::mpsc::{SyncSender, TrySendError};
 use std::time::{Duration, Instant};
 
 use crate::alarm::Alarm;
@@ -20,6 +26,46 @@ use super::worker::Worker;
 
 /// Input bytes per batch sent to the loop.
 pub const CHUNK_BYTES: usize = 64 * 1024;
+/// Most row values held for a loop that has fallen behind (8 bytes each).
+pub const HELD_VALUES_MAX: usize = 4 << 20;
+
+/// Messages for the loop, sent without waiting: held in order while its
+/// channel is full, consecutive data batches merged.
+struct Outlet {
+    tx: SyncSender<Msg>,
+    held: VecDeque<Msg>,
+}
+
+impl Outlet {
+    /// Queue `m` and send what the channel takes; false once the loop is gone.
+    fn send(&mut self, m: Msg) -> bool {
+        match (self.held.back_mut(), m) {
+            (Some(Msg::Data(prev)), Msg::Data(b)) => {
+                prev.append(*b);
+                if prev.values.len() > HELD_VALUES_MAX {
+                    prev.drop_rows();
+                }
+            }
+            (_, m) => self.held.push_back(m),
+        }
+        self.flush()
+    }
+
+    /// Send held messages while the channel has room; false once the loop is gone.
+    fn flush(&mut self) -> bool {
+        while let Some(m) = self.held.pop_front() {
+            match self.tx.try_send(m) {
+                Ok(()) => {}
+                Err(TrySendError::Full(m)) => {
+                    self.held.push_front(m);
+                    return true;
+                }
+                Err(TrySendError::Disconnected(_)) => return false,
+            }
+        }
+        true
+    }
+}
 
 /// Handle of the data thread.
 pub struct Feed {
@@ -43,7 +89,10 @@ impl Feed {
     {
         let worker = Worker::spawn(move |flag| {
             let mut pipeline = Pipeline::new(&settings);
-            let send = |m: Msg| tx.send(m).is_ok();
+            let mut out = Outlet {
+                tx,
+                held: VecDeque::new(),
+            };
             while !flag.load(Ordering::Relaxed) {
                 let ok = match source.poll() {
                     Ok(Some(Event::Data(bytes))) => {
@@ -53,7 +102,7 @@ impl Feed {
                             let mut b = Batch::default();
                             pipeline.feed(chunk, Some(arrival_s), &mut b);
                             finish(&mut b, &mut pipeline, arrival_s, &mut on_alarm);
-                            send(Msg::Data(Box::new(b)))
+                            out.send(Msg::Data(Box::new(b)))
                         })
                     }
                     Ok(Some(Event::Restart(reason))) => {
@@ -61,21 +110,25 @@ impl Feed {
                         pipeline.restart(&mut b);
                         let arrival_s = t0.elapsed().as_secs_f64();
                         finish(&mut b, &mut pipeline, arrival_s, &mut on_alarm);
-                        send(Msg::Source(format!(
+                        out.send(Msg::Source(format!(
                             "{}: reading it again from its start",
                             reason.describe()
-                        ))) && send(Msg::Data(Box::new(b)))
+                        ))) && out.send(Msg::Data(Box::new(b)))
                     }
-                    Ok(Some(Event::Appeared)) => send(Msg::Source("file found: reading".into())),
-                    Ok(Some(Event::Missing)) => send(Msg::Source(
+                    Ok(Some(Event::Appeared)) => {
+                        out.send(Msg::Source("file found: reading".into()))
+                    }
+                    Ok(Some(Event::Missing)) => out.send(Msg::Source(
                         "the file is gone: waiting for it to come back".into(),
                     )),
                     Ok(None) => {
+                        // Nothing new: retry what the loop had no room for.
+                        let ok = out.flush();
                         source.wait(max_wait);
-                        true
+                        ok
                     }
                     Err(e) => {
-                        let ok = send(Msg::Source(format!("cannot read the file: {e}")));
+                        let ok = out.send(Msg::Source(format!("cannot read the file: {e}")));
                         source.wait(max_wait);
                         ok
                     }
@@ -157,5 +210,50 @@ mod tests {
         feed.stop();
         assert_eq!(rows, 5_000);
         assert!(batches >= 2, "a backlog must come as several batches");
+    }
+
+    #[test]
+    fn alarms_reach_the_observer_while_the_loop_reads_nothing() {
+        // 20,000 healthy rows then NaN, into a channel of one the loop never reads.
+        let mut text = String::from("time,displacement\n");
+        for i in 0..20_000 {
+            let t = f64::from(i) * 1e-3;
+            text.push_str(&format!("{t},{}\n", (30.0 * t).cos()));
+        }
+        text.push_str("20.0,NaN\n");
+        let (tx, rx) = sync_channel(1);
+        let mut source = Scripted::new(vec![Step::Event(Event::Data(text.into_bytes()))]);
+        source.wait_sleep = Duration::from_millis(5);
+        let seen = std::sync::Arc::new(std::sync::Mutex::new(Vec::new()));
+        let seen_in = std::sync::Arc::clone(&seen);
+        let feed = Feed::spawn(
+            source,
+            Settings::default(),
+            tx,
+            Instant::now(),
+            Duration::from_millis(10),
+            Box::new(move |a| seen_in.lock().unwrap().push(a.detector)),
+        );
+        let deadline = Instant::now() + Duration::from_secs(30);
+        while !seen.lock().unwrap().contains(&"nonfinite") && Instant::now() < deadline {
+            std::thread::sleep(Duration::from_millis(10));
+        }
+        assert!(seen.lock().unwrap().contains(&"nonfinite"), "{seen:?}");
+        // Everything held comes out once the loop reads: every row, in order.
+        let mut rows = 0;
+        let mut last = 0;
+        while let Ok(Msg::Data(b)) = rx.recv_timeout(Duration::from_millis(500)) {
+            for i in &b.items {
+                if let Item::Row { line, .. } = i {
+                    assert!(*line > last);
+                    last = *line;
+                    rows += 1;
+                }
+            }
+            rows += b.undrawn_rows;
+        }
+        drop(rx);
+        feed.stop();
+        assert_eq!(rows, 20_001);
     }
 }

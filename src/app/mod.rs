@@ -9,6 +9,7 @@ pub mod fleet;
 pub mod run;
 pub mod speed;
 pub mod state;
+pub mod stopper;
 pub mod update;
 pub mod worker;
 

@@ -2,47 +2,26 @@
 //! file data, ticks, signals). Messages are applied as they come; the screen is
 //! redrawn only when the state is dirty, and at most once per frame interval,
 //! so a fast file never drives the frame rate and an idle run costs no frames.
-//! Effects go to the armed stop actions through [`StopActions`].
+//! A stop confirmed by hand goes to the armed actions' own thread through a
+//! [`StopHandle`]; nothing here advances them, so a slow frame delays no action.
+//! The frame itself is drawn by the function passed in (the dashboard's
+//! [`crate::ui::render`]; tests pass one that blocks).
 
 use std::sync::atomic::Ordering;
 use std::sync::mpsc::{Receiver, RecvTimeoutError, SyncSender};
 use std::time::{Duration, Instant};
 
-use ratatui::Terminal;
 use ratatui::backend::Backend;
+use ratatui::{Frame, Terminal};
 
-use crate::alarm::Alarm;
-
+use super::stopper::StopHandle;
 use super::worker::Worker;
 use super::{AppState, Effect, Msg};
 
-/// Longest sleep when nothing is pending, so armed actions are advanced.
+/// Longest sleep when nothing is pending.
 const IDLE_WAKE: Duration = Duration::from_millis(250);
 /// Most messages applied between two frame checks.
 const DRAIN_MAX: usize = 512;
-
-/// What the loop tells the armed stop actions, and what they report back as
-/// one line per step taken (`ok` false when any step failed or was refused).
-pub trait StopActions {
-    /// An alarm to act on (a critical one confirmed by hand, or one raised
-    /// while armed for alarms).
-    fn on_alarm(&mut self, alarm: &Alarm, now: Instant) -> Option<(bool, Vec<String>)>;
-    /// Advance pending steps (grace periods, commands); `last_data` is when the
-    /// followed file last grew.
-    fn tick(&mut self, now: Instant, last_data: Option<Instant>) -> Option<(bool, Vec<String>)>;
-}
-
-/// No actions armed.
-pub struct NoActions;
-
-impl StopActions for NoActions {
-    fn on_alarm(&mut self, _: &Alarm, _: Instant) -> Option<(bool, Vec<String>)> {
-        None
-    }
-    fn tick(&mut self, _: Instant, _: Option<Instant>) -> Option<(bool, Vec<String>)> {
-        None
-    }
-}
 
 /// Frame pacing of the loop.
 #[derive(Debug, Clone, Copy)]
@@ -71,12 +50,12 @@ pub fn run<B: Backend>(
     terminal: &mut Terminal<B>,
     state: &mut AppState,
     rx: &Receiver<Msg>,
-    actions: &mut dyn StopActions,
+    stop: &StopHandle,
     pacing: Pacing,
+    draw: &mut dyn FnMut(&AppState, &mut Frame),
 ) -> Result<LoopStats, B::Error> {
     let mut stats = LoopStats::default();
     let mut last_frame: Option<Instant> = None;
-    let mut last_data: Option<Instant> = None;
     loop {
         let now = Instant::now();
         let due = last_frame.map(|t| t + pacing.frame_interval).unwrap_or(now);
@@ -99,40 +78,25 @@ pub fn run<B: Backend>(
         }
         for msg in pending {
             stats.messages += 1;
-            if matches!(msg, Msg::Data(_)) {
-                last_data = Some(Instant::now());
+            for e in state.update(msg) {
+                match e {
+                    Effect::Quit => state.quit = true,
+                    Effect::Stop(alarm) => stop.alarm(&alarm),
+                }
             }
-            let fx = state.update(msg);
-            apply(state, actions, fx);
-        }
-        if let Some((ok, report)) = actions.tick(Instant::now(), last_data) {
-            state.update(Msg::StopReport { ok, report });
         }
         if state.quit {
             break;
         }
         let now = Instant::now();
         if state.dirty && last_frame.is_none_or(|t| now >= t + pacing.frame_interval) {
-            terminal.draw(|f| crate::ui::render(state, f))?;
+            terminal.draw(|f| draw(state, f))?;
             state.dirty = false;
             last_frame = Some(now);
             stats.frames += 1;
         }
     }
     Ok(stats)
-}
-
-fn apply(state: &mut AppState, actions: &mut dyn StopActions, fx: Vec<Effect>) {
-    for e in fx {
-        match e {
-            Effect::Quit => state.quit = true,
-            Effect::Stop(alarm) | Effect::Alarm(alarm) => {
-                if let Some((ok, report)) = actions.on_alarm(&alarm, Instant::now()) {
-                    state.update(Msg::StopReport { ok, report });
-                }
-            }
-        }
-    }
 }
 
 /// Sends [`Msg::Tick`] with monotonic seconds since `t0` every `every`.
@@ -167,20 +131,27 @@ impl Ticker {
 #[allow(clippy::unwrap_used)]
 mod tests {
     use super::*;
+    use crate::alarm::Alarm;
+    use crate::app::stopper::{StopActions, Stopper};
     use crate::app::{Config, Key};
     use ratatui::backend::TestBackend;
     use std::sync::mpsc::sync_channel;
+    use std::sync::{Arc, Mutex};
 
-    struct Recorder(Vec<String>);
+    struct Recorder(Arc<Mutex<Vec<String>>>);
 
     impl StopActions for Recorder {
         fn on_alarm(&mut self, a: &Alarm, _: Instant) -> Option<(bool, Vec<String>)> {
-            self.0.push(a.message.clone());
+            self.0.lock().unwrap().push(a.message.clone());
             Some((true, vec![format!("did it for {}", a.detector)]))
         }
-        fn tick(&mut self, _: Instant, _: Option<Instant>) -> Option<(bool, Vec<String>)> {
+        fn tick(&mut self, _: Instant) -> Option<(bool, Vec<String>)> {
             None
         }
+    }
+
+    fn render(s: &AppState, f: &mut Frame) {
+        crate::ui::render(s, f);
     }
 
     fn config() -> Config {
@@ -200,7 +171,15 @@ mod tests {
         tx.send(Msg::Key(Key::Char('q'))).unwrap();
         let mut term = Terminal::new(TestBackend::new(80, 24)).unwrap();
         let mut s = AppState::new(config());
-        let stats = run(&mut term, &mut s, &rx, &mut NoActions, Pacing::default()).unwrap();
+        let stats = run(
+            &mut term,
+            &mut s,
+            &rx,
+            &StopHandle::none(),
+            Pacing::default(),
+            &mut render,
+        )
+        .unwrap();
         assert_eq!(stats.messages, 501);
         assert!(stats.frames <= 2, "{} frames", stats.frames);
     }
@@ -215,7 +194,15 @@ mod tests {
             std::thread::sleep(Duration::from_millis(600));
             drop(tx);
         });
-        let stats = run(&mut term, &mut s, &rx, &mut NoActions, Pacing::default()).unwrap();
+        let stats = run(
+            &mut term,
+            &mut s,
+            &rx,
+            &StopHandle::none(),
+            Pacing::default(),
+            &mut render,
+        )
+        .unwrap();
         t.join().unwrap();
         assert_eq!(stats.frames, 0);
     }
@@ -223,14 +210,34 @@ mod tests {
     #[test]
     fn a_confirmed_stop_reaches_the_actions_once() {
         let (tx, rx) = sync_channel(16);
-        for k in ['X', 'y', 'X', 'y', 'q'] {
+        for k in ['X', 'y', 'X', 'y'] {
             tx.send(Msg::Key(Key::Char(k))).unwrap();
         }
+        let seen = Arc::new(Mutex::new(Vec::new()));
+        let stopper = Stopper::spawn(
+            Box::new(Recorder(Arc::clone(&seen))),
+            tx.clone(),
+            Duration::from_millis(10),
+        );
+        // Quit once the report has come back.
+        let quit = std::thread::spawn(move || {
+            std::thread::sleep(Duration::from_millis(500));
+            let _ = tx.send(Msg::Key(Key::Char('q')));
+        });
         let mut term = Terminal::new(TestBackend::new(80, 24)).unwrap();
         let mut s = AppState::new(config());
-        let mut rec = Recorder(vec![]);
-        run(&mut term, &mut s, &rx, &mut rec, Pacing::default()).unwrap();
-        assert_eq!(rec.0.len(), 1);
+        run(
+            &mut term,
+            &mut s,
+            &rx,
+            &stopper.handle(),
+            Pacing::default(),
+            &mut render,
+        )
+        .unwrap();
+        quit.join().unwrap();
+        stopper.stop();
+        assert_eq!(seen.lock().unwrap().len(), 1);
         assert!(matches!(
             s.stop,
             crate::app::StopState::Done { ok: true, .. }

@@ -52,11 +52,9 @@ pub enum Msg {
 pub enum Effect {
     Quit,
     /// The user confirmed the stop: hand this (critical) alarm to the armed
-    /// actions, which fire at most once.
-    Stop(Alarm),
-    /// An alarm was raised while actions are armed: hand it to them; they
-    /// decide whether it triggers (critical, or warning when so configured).
-    Alarm(Alarm),
+    /// actions, which fire at most once. (Alarms raised while armed for
+    /// alarms reach the actions from the data thread, not through here.)
+    Stop(Box<Alarm>),
 }
 
 /// Detector name of the alarm that stands for a stop confirmed by hand.
@@ -87,7 +85,7 @@ impl AppState {
         let mut fx = Vec::new();
         match msg {
             Msg::Key(k) => self.key(k, &mut fx),
-            Msg::Data(b) => self.ingest(&b, &mut fx),
+            Msg::Data(b) => self.ingest(&b),
             Msg::Tick { now_s } => {
                 self.now_s = now_s;
                 // Countdowns in the header move with the clock.
@@ -245,17 +243,17 @@ impl AppState {
             reason: reason.clone(),
         };
         self.push_event(note(&format!("taking the stop actions: {reason}")));
-        fx.push(Effect::Stop(Alarm {
+        fx.push(Effect::Stop(Box::new(Alarm {
             level: Level::Critical,
             detector: BY_HAND,
             line: self.last_line,
             time: self.time_now(),
             message: reason,
             evidence: Evidence::default(),
-        }));
+        })));
     }
 
-    fn ingest(&mut self, b: &Batch, fx: &mut Vec<Effect>) {
+    fn ingest(&mut self, b: &Batch) {
         self.dirty = true;
         let mut pending_break = false;
         for item in &b.items {
@@ -336,12 +334,6 @@ impl AppState {
                     {
                         self.banner = Some(ev);
                     }
-                    if self.config.auto_stop
-                        && !self.config.actions.is_empty()
-                        && a.level > Level::Ok
-                    {
-                        fx.push(Effect::Alarm(a.clone()));
-                    }
                 }
             }
         }
@@ -373,7 +365,21 @@ impl AppState {
                 );
             }
         }
-        let had_rows = b.items.iter().any(|i| matches!(i, Item::Row { .. }));
+        if b.undrawn_rows > 0 {
+            self.rows += b.undrawn_rows;
+            self.push_event(Event {
+                level: Level::Warning,
+                source: "screen".into(),
+                line: None,
+                time: None,
+                text: format!(
+                    "{} rows read while the screen was held up are not drawn; \
+                     the detectors saw every one",
+                    b.undrawn_rows
+                ),
+            });
+        }
+        let had_rows = b.undrawn_rows > 0 || b.items.iter().any(|i| matches!(i, Item::Row { .. }));
         if had_rows {
             // Rows are flowing: a note about finding or waiting for the file is stale.
             self.note = None;

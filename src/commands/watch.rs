@@ -10,10 +10,11 @@ use std::time::{Duration, Instant};
 
 use anyhow::{Context, bail};
 
-use crate::act::{ActionSpec, Activity, Escalation, EscalationConfig, EventLog, ProcessId};
-use crate::alarm::{Alarm, Level};
+use crate::act::{ActionSpec, Escalation, EscalationConfig, EventLog, ProcessId};
+use crate::alarm::Level;
 use crate::app::feed::Feed;
-use crate::app::run::{Pacing, StopActions, Ticker};
+use crate::app::run::{Pacing, Ticker};
+use crate::app::stopper::{Armed, Stopper, TICK};
 use crate::app::{AppState, Config, StopState};
 use crate::cli::follow::POLL_DEFAULT;
 use crate::cli::watch::WatchArgs;
@@ -63,53 +64,6 @@ pub fn describe_actions(cfg: &EscalationConfig) -> Vec<String> {
         .collect()
 }
 
-/// The armed escalation, driven by the dashboard loop.
-struct Armed {
-    escalation: Escalation,
-    pid: Option<ProcessId>,
-    log: Arc<Mutex<EventLog>>,
-}
-
-impl Armed {
-    fn lines(&mut self, reports: Vec<crate::act::ActionReport>) -> Option<(bool, Vec<String>)> {
-        if reports.is_empty() {
-            return None;
-        }
-        let mut ok = true;
-        let mut lines = Vec::new();
-        for r in &reports {
-            if let Ok(mut log) = self.log.lock() {
-                log.action(r);
-            }
-            ok &= !r.outcome.failed();
-            lines.push(format!(
-                "step {} {}: {} ({})",
-                r.index + 1,
-                r.action,
-                r.outcome.word(),
-                r.outcome.detail()
-            ));
-        }
-        Some((ok, lines))
-    }
-}
-
-impl StopActions for Armed {
-    fn on_alarm(&mut self, alarm: &Alarm, now: Instant) -> Option<(bool, Vec<String>)> {
-        let r = self.escalation.on_alarm(alarm, now);
-        self.lines(r)
-    }
-
-    fn tick(&mut self, now: Instant, last_data: Option<Instant>) -> Option<(bool, Vec<String>)> {
-        let activity = Activity {
-            last_growth: last_data,
-            pid_alive: self.pid.as_ref().map(|p| p.alive()),
-        };
-        let r = self.escalation.tick(now, &activity);
-        self.lines(r)
-    }
-}
-
 /// True when colours may be used (`NO_COLOR` unset or empty).
 pub fn colour_allowed() -> bool {
     std::env::var_os("NO_COLOR").is_none_or(|v| v.is_empty())
@@ -155,11 +109,7 @@ fn watch(
         .chain(escalation.warnings_at_start())
         .collect();
     let log = Arc::new(Mutex::new(log));
-    let mut armed = Armed {
-        escalation,
-        pid,
-        log: Arc::clone(&log),
-    };
+    let armed = Armed::new(escalation, pid, Arc::clone(&log), args.file.clone());
     let t0 = Instant::now();
     let mut state = AppState::new(Config {
         file: args.file.display().to_string(),
@@ -186,6 +136,7 @@ fn watch(
     }
 
     let (tx, rx) = sync_channel(256);
+    let stopper = Stopper::spawn(Box::new(armed), tx.clone(), TICK);
     let mut session = tui::enter().context("cannot set up the terminal")?;
     let signals = tui::spawn_signals(tx.clone()).context("cannot listen for signals")?;
     let input = tui::Input::spawn(tx.clone());
@@ -200,6 +151,9 @@ fn watch(
         },
     );
     let alarm_log = Arc::clone(&log);
+    // Alarms reach the armed actions from the data thread, never through the
+    // drawing loop.
+    let to_actions = (!args.by_key_only).then(|| stopper.handle());
     let feed = Feed::spawn(
         follower,
         settings,
@@ -210,18 +164,29 @@ fn watch(
             if let Ok(mut l) = alarm_log.lock() {
                 l.alarm(a);
             }
+            if let Some(h) = &to_actions {
+                h.alarm(a);
+            }
         }),
     );
     let pacing = Pacing {
         frame_interval: Duration::from_secs_f64(1.0 / f64::from(args.fps)),
     };
-    let result = crate::app::run::run(&mut session.terminal, &mut state, &rx, &mut armed, pacing);
+    let result = crate::app::run::run(
+        &mut session.terminal,
+        &mut state,
+        &rx,
+        &stopper.handle(),
+        pacing,
+        &mut crate::ui::render,
+    );
     drop(session);
     drop(rx);
     signals.close();
     input.stop();
     ticker.stop();
     feed.stop();
+    stopper.stop();
     result.context("cannot draw on the terminal")?;
 
     let stop = match &state.stop {
