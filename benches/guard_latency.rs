@@ -11,7 +11,8 @@ use std::io::Write;
 use std::sync::mpsc;
 use std::time::{Duration, Instant};
 
-use rhoscope::alarm::{Alarm, Level};
+use rhoscope::alarm::Alarm;
+use rhoscope::finding::Level;
 use rhoscope::pipeline::Pipeline;
 use rhoscope::settings::Settings;
 use rhoscope::source::{Event, FollowConfig, Follower, Source};

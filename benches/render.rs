@@ -8,9 +8,11 @@ use criterion::{Criterion, criterion_group, criterion_main};
 use ratatui::Terminal;
 use ratatui::backend::TestBackend;
 
-use rhoscope::alarm::{Alarm, Level};
+use rhoscope::alarm::Alarm;
 use rhoscope::app::{AppState, Batch, Config, Item, Msg};
-use rhoscope::detect::{Evidence, Status};
+use rhoscope::detect::Status;
+use rhoscope::finding::Evidence;
+use rhoscope::finding::Level;
 use rhoscope::parse::roles::{EnergyTerm, Role, RoleMap};
 use rhoscope::parse::{Column, Schema};
 

@@ -13,6 +13,8 @@ pub mod cli;
 pub mod commands;
 pub mod demo;
 pub mod detect;
+pub mod evaluate;
+pub mod finding;
 pub mod fleet;
 pub mod history;
 pub mod metrics;

@@ -5,7 +5,8 @@
 //! No I/O and no clocks: arrival instants come in as data.
 
 use crate::alarm::{Alarm, AlarmBook};
-use crate::detect::{DetectSettings, Engine, Finding, Sample, Status};
+use crate::detect::{DetectSettings, Engine, Sample, Status};
+use crate::finding::Finding;
 use crate::parse::roles::{RoleMap, RoleRules, assign};
 use crate::parse::{Reader, RowSink, Schema, SegmentReason, SkipReason};
 use crate::settings::Settings;
@@ -49,7 +50,7 @@ struct State {
     roles: RoleMap,
     engine: Option<Engine>,
     book: AlarmBook,
-    findings: Vec<Finding>,
+    findings: Vec<(&'static str, Finding)>,
     rows: u64,
     skipped: u64,
     empty: Status,
@@ -84,8 +85,8 @@ impl RowSink for Adapter<'_> {
             arrival_s: self.arrival_s,
         };
         engine.feed(&sample, &mut s.findings);
-        for f in s.findings.drain(..) {
-            if let Some(a) = s.book.take(&f) {
+        for (detector, f) in s.findings.drain(..) {
+            if let Some(a) = s.book.take(detector, &f) {
                 self.out.alarm(&a);
             }
         }
@@ -196,7 +197,7 @@ impl Pipeline {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::alarm::Level;
+    use crate::finding::Level;
 
     #[test]
     fn alarms_are_the_same_however_the_bytes_arrive() {

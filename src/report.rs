@@ -5,7 +5,8 @@
 
 use serde::{Deserialize, Serialize};
 
-use crate::alarm::{Alarm, Level};
+use crate::alarm::Alarm;
+use crate::finding::Level;
 use crate::parse::roles::RoleMap;
 use crate::parse::{Schema, SegmentReason, SkipReason};
 use crate::pipeline::PipelineSink;
@@ -60,7 +61,7 @@ pub struct AlarmEntry {
     /// The figures behind it (growth per step, balance error, forecast, onset,
     /// stability margin), those that apply.
     #[serde(default)]
-    pub evidence: crate::detect::Evidence,
+    pub evidence: crate::finding::Evidence,
 }
 
 /// A place in the file.

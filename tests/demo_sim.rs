@@ -5,10 +5,10 @@
 use std::f64::consts::PI;
 
 use nalgebra::DVector;
-use rhoscope::alarm::Level;
 use rhoscope::demo::integrate::{Dynamics, Scheme};
 use rhoscope::demo::model::{Conn, Dashpot, Element, Law, Model};
 use rhoscope::demo::{Run, catalogue};
+use rhoscope::finding::Level;
 
 /// One mass m on a spring k to ground, optional dashpot c.
 fn sdof(m: f64, k: f64, c: f64) -> Model {

@@ -2,8 +2,9 @@
 //! amplification sequence, sampled oscillators with a known exponent, and the
 //! energy balance of the free damped oscillator.
 
-use rhoscope::alarm::{Alarm, Level};
+use rhoscope::alarm::Alarm;
 use rhoscope::detect::{DetectSettings, Status, replay};
+use rhoscope::finding::Level;
 use rhoscope::parse::roles::{EnergyTerm, Role, RoleMap};
 use rhoscope::parse::{Column, Schema};
 

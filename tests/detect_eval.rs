@@ -1,12 +1,20 @@
 //! The detectors on the labelled demo catalogue, read through the same
 //! pipeline as `scan` (see `rhoscope evaluate`).
 
-use rhoscope::commands::evaluate::evaluate;
-use rhoscope::detect::score::{Totals, table};
+use rhoscope::evaluate::score::{CaseScore, Totals, table};
+use rhoscope::evaluate::{demo, score_set};
+
+fn scores(set: rhoscope::evaluate::Set) -> Vec<CaseScore> {
+    score_set(&set).expect("demo sets are in memory").cases
+}
+
+fn evaluate() -> Vec<CaseScore> {
+    scores(demo::catalogue(None).expect("the catalogue builds"))
+}
 
 #[test]
 fn every_blowup_detected_before_its_crash_and_every_drift_warned() {
-    let scores = evaluate(&rhoscope::demo::catalogue());
+    let scores = evaluate();
     let t = Totals::of(&scores);
     let text = table(&scores);
     assert!(
@@ -22,7 +30,7 @@ fn every_blowup_detected_before_its_crash_and_every_drift_warned() {
 /// median lead of at least 0.95.
 #[test]
 fn all_targets() {
-    let scores = evaluate(&rhoscope::demo::catalogue());
+    let scores = evaluate();
     let t = Totals::of(&scores);
     assert!(t.targets_met(), "{}", table(&scores));
 }
@@ -33,8 +41,7 @@ fn all_targets() {
 /// and nothing healthy may be called critical.
 #[test]
 fn variants_detected_without_false_critical() {
-    let cases = rhoscope::demo::catalogue();
-    let scores = rhoscope::commands::evaluate::evaluate_variants(&cases);
+    let scores = scores(demo::variants(None).expect("the variants build"));
     let t = Totals::of(&scores);
     let text = table(&scores);
     assert!(t.blowups >= 20 && t.healthy >= 20, "{text}");

@@ -5,7 +5,7 @@
 use std::io::Write;
 
 use assert_cmd::Command;
-use rhoscope::alarm::Level;
+use rhoscope::finding::Level;
 use rhoscope::report::ScanReport;
 
 fn bin() -> Command {

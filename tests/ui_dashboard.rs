@@ -6,8 +6,8 @@ use ratatui::backend::TestBackend;
 use ratatui::style::Color;
 
 use crate::ui_support::{self, Kind, config, state, state_with};
-use rhoscope::alarm::Level;
 use rhoscope::app::{AppState, Dialog, Effect, Key, Msg, StopState};
+use rhoscope::finding::Level;
 
 fn draw(s: &AppState, w: u16, h: u16) -> Terminal<TestBackend> {
     let mut term = Terminal::new(TestBackend::new(w, h)).unwrap();
@@ -348,7 +348,7 @@ fn estimates(line: u64, rho: f64, onset_line: u64, arrival_s: f64) -> rhoscope::
     row[0] = 100.0 + line as f64;
     b.push_row(line, &row);
     b.status = Some(rhoscope::detect::Status {
-        evidence: rhoscope::detect::Evidence {
+        evidence: rhoscope::finding::Evidence {
             growth_per_step: Some(rho),
             onset_line: Some(onset_line),
             onset_time: Some(onset_line as f64),
@@ -381,7 +381,7 @@ fn the_alarms_onset_holds_while_the_growth_goes_on() {
             line: 3_000,
             time: None,
             message: "growth per step 1.18".into(),
-            evidence: rhoscope::detect::Evidence {
+            evidence: rhoscope::finding::Evidence {
                 onset_line: Some(2_990),
                 ..Default::default()
             },

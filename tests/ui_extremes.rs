@@ -15,7 +15,8 @@ use ratatui::text::Line;
 
 use rhoscope::app::fleet::FleetView;
 use rhoscope::app::{AppState, Batch, Config, Item, Key, Msg};
-use rhoscope::detect::{Evidence, Status};
+use rhoscope::detect::Status;
+use rhoscope::finding::Evidence;
 use rhoscope::fleet::RunRow;
 use rhoscope::parse::roles::{EnergyTerm, Role, RoleMap};
 use rhoscope::parse::{Column, Schema};
@@ -96,7 +97,7 @@ fn state_of(rows: &[[f64; 6]], est: f64, time: impl Fn(usize) -> f64) -> AppStat
         b.push_row(i as u64 + 2, &v);
     }
     b.items.push(Item::Alarm(rhoscope::alarm::Alarm {
-        level: rhoscope::alarm::Level::Critical,
+        level: rhoscope::finding::Level::Critical,
         detector: "nonfinite",
         line: rows.len() as u64 + 1,
         time: Some(est),
@@ -236,7 +237,7 @@ fn the_many_run_view_draws_runs_at_the_extremes() {
             ..Evidence::default()
         });
         r.alarm(&rhoscope::alarm::Alarm {
-            level: rhoscope::alarm::Level::Critical,
+            level: rhoscope::finding::Level::Critical,
             detector: "growth",
             line: u64::MAX,
             time: Some(v),

@@ -104,8 +104,8 @@ impl RunningCommand {
 mod tests {
     #![allow(clippy::unwrap_used)]
     use super::*;
-    use crate::alarm::Level;
-    use crate::detect::Evidence;
+    use crate::finding::Evidence;
+    use crate::finding::Level;
 
     fn alarm() -> Alarm {
         Alarm {

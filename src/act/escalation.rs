@@ -12,7 +12,8 @@ use nix::sys::signal::Signal;
 use super::command::{CommandEnd, RunningCommand, alarm_env};
 use super::process::ProcessId;
 use super::stopfile::{check_at_start, create_stop_file};
-use crate::alarm::{Alarm, Level};
+use crate::alarm::Alarm;
+use crate::finding::Level;
 
 /// One configured action.
 #[derive(Debug, Clone, PartialEq)]

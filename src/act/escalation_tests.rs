@@ -9,8 +9,9 @@ use std::process::Command;
 use std::time::{Duration, Instant};
 
 use super::*;
-use crate::alarm::{Alarm, Level};
-use crate::detect::Evidence;
+use crate::alarm::Alarm;
+use crate::finding::Evidence;
+use crate::finding::Level;
 
 fn alarm(level: Level, line: u64) -> Alarm {
     Alarm {

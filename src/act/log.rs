@@ -10,7 +10,8 @@ use std::time::SystemTime;
 use serde::Serialize;
 
 use super::{ActionReport, Outcome};
-use crate::alarm::{Alarm, AlarmSink, Level};
+use crate::alarm::Alarm;
+use crate::finding::Level;
 
 /// One record of the event log.
 #[derive(Debug, Clone, PartialEq, Serialize, serde::Deserialize)]
@@ -155,12 +156,6 @@ impl EventLog {
             action: None,
             outcome: None,
         });
-    }
-}
-
-impl AlarmSink for EventLog {
-    fn alarm(&mut self, alarm: &Alarm) {
-        EventLog::alarm(self, alarm);
     }
 }
 

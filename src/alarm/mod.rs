@@ -1,19 +1,10 @@
-//! Findings → alarms: levels, persistence and hysteresis (one alarm per raise,
-//! not one per row), acknowledgement; and the [`AlarmSink`] trait through which
-//! the report, the event log and the dashboard receive alarms.
+//! Findings → alarms: the [`AlarmBook`] raises one [`Alarm`] per rise of a
+//! detector's level, not one per row. Persistence and hysteresis are decided
+//! by each detector; acknowledgement belongs to the dashboard (`app/`) and the
+//! alarms reach their consumers through the pipeline's sink. Uses only
+//! `finding` (below both this module and `detect/`).
 
-use serde::{Deserialize, Serialize};
-
-use crate::detect::{Evidence, Finding};
-
-/// Severity, ordered: `Ok < Warning < Critical`.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash, Serialize, Deserialize)]
-#[serde(rename_all = "lowercase")]
-pub enum Level {
-    Ok,
-    Warning,
-    Critical,
-}
+use crate::finding::{Evidence, Finding, Level};
 
 /// A raised alarm.
 #[derive(Debug, Clone, PartialEq)]
@@ -25,17 +16,6 @@ pub struct Alarm {
     pub time: Option<f64>,
     pub message: String,
     pub evidence: Evidence,
-}
-
-/// Receives raised alarms.
-pub trait AlarmSink {
-    fn alarm(&mut self, alarm: &Alarm);
-}
-
-impl AlarmSink for Vec<Alarm> {
-    fn alarm(&mut self, alarm: &Alarm) {
-        self.push(alarm.clone());
-    }
 }
 
 /// Turns a stream of findings into alarms: a detector's alarm is raised when its
@@ -50,18 +30,19 @@ pub struct AlarmBook {
 }
 
 impl AlarmBook {
-    /// Process one finding; returns the alarm it raises, if any.
-    pub fn take(&mut self, f: &Finding) -> Option<Alarm> {
-        let current = self.active.iter().position(|(d, _)| *d == f.detector);
+    /// Process one finding of the detector named `detector`; returns the
+    /// alarm it raises, if any.
+    pub fn take(&mut self, detector: &'static str, f: &Finding) -> Option<Alarm> {
+        let current = self.active.iter().position(|(d, _)| *d == detector);
         let prev = current.map(|i| self.active[i].1).unwrap_or(Level::Ok);
         match current {
             Some(i) => self.active[i].1 = f.level,
-            None => self.active.push((f.detector, f.level)),
+            None => self.active.push((detector, f.level)),
         }
         if f.level > prev {
             Some(Alarm {
                 level: f.level,
-                detector: f.detector,
+                detector,
                 line: f.line,
                 time: f.time,
                 message: f.message.clone(),
@@ -91,15 +72,15 @@ impl AlarmBook {
 mod tests {
     use super::*;
 
-    fn finding(detector: &'static str, level: Level, line: u64) -> Finding {
-        Finding {
-            detector,
+    fn finding(detector: &'static str, level: Level, line: u64) -> (&'static str, Finding) {
+        let f = Finding {
             level,
             line,
             time: None,
             message: String::new(),
             evidence: Evidence::default(),
-        }
+        };
+        (detector, f)
     }
 
     #[test]
@@ -115,7 +96,7 @@ mod tests {
             finding("energy", Level::Warning, 16),
         ]
         .iter()
-        .filter_map(|f| book.take(f))
+        .filter_map(|(d, f)| book.take(d, f))
         .map(|a| a.line)
         .collect();
         assert_eq!(lines, vec![10, 12, 13, 16]);

@@ -140,7 +140,8 @@ impl FleetView {
 mod tests {
     #![allow(clippy::unwrap_used)]
     use super::*;
-    use crate::alarm::{Alarm, Level};
+    use crate::alarm::Alarm;
+    use crate::finding::Level;
     use crate::pipeline::PipelineSink;
 
     fn row(name: &str, level: Level) -> RunRow {

@@ -6,8 +6,8 @@
 use std::collections::VecDeque;
 use std::time::Duration;
 
-use crate::alarm::Level;
-use crate::detect::Evidence;
+use crate::finding::Evidence;
+use crate::finding::Level;
 use crate::history::Table;
 use crate::parse::Schema;
 use crate::parse::roles::{EnergyTerm, Role, RoleMap};
@@ -92,7 +92,6 @@ pub const MAX_EVENTS: usize = 500;
 /// Names of the derived (per-batch) series.
 pub const D_GROWTH: usize = 0;
 pub const D_BALANCE: usize = 1;
-pub const D_FORECAST_STEPS: usize = 2;
 
 /// The whole dashboard state.
 #[derive(Debug, Clone)]
@@ -153,11 +152,7 @@ impl AppState {
             roles: RoleMap::default(),
             table: Table::with_sizes(vec![], retention, crate::history::DEFAULT_ENVELOPE_BUCKETS),
             derived: Table::with_sizes(
-                vec![
-                    "growth per step".into(),
-                    "energy balance error".into(),
-                    "steps to overflow".into(),
-                ],
+                vec!["growth per step".into(), "energy balance error".into()],
                 retention,
                 crate::history::DEFAULT_ENVELOPE_BUCKETS,
             ),

@@ -251,8 +251,8 @@ impl StopActions for Armed {
 #[allow(clippy::unwrap_used)]
 mod tests {
     use super::*;
-    use crate::alarm::Level;
-    use crate::detect::Evidence;
+    use crate::finding::Evidence;
+    use crate::finding::Level;
     use std::sync::mpsc::sync_channel;
 
     /// Counts alarms and ticks; reports each alarm.

@@ -3,8 +3,9 @@
 //! [`AppState::update`] applies them and returns the [`Effect`]s the event loop
 //! must carry out (quit, take the stop actions). No terminal, no clock, no files.
 
-use crate::alarm::{Alarm, Level};
-use crate::detect::Evidence;
+use crate::alarm::Alarm;
+use crate::finding::Evidence;
+use crate::finding::Level;
 use crate::parse::SegmentReason;
 use crate::parse::roles::Role;
 
@@ -360,7 +361,6 @@ impl AppState {
                     &[
                         e.growth_per_step.unwrap_or(nan),
                         e.balance_error.unwrap_or(nan),
-                        e.forecast_steps.unwrap_or(nan),
                     ],
                 );
             }

@@ -5,24 +5,32 @@ use clap::Args;
 /// Arguments of `rhoscope evaluate`.
 #[derive(Debug, Args)]
 #[command(
-    after_help = "Runs every labelled demo case through the same pipeline as `scan` and
-prints, per case, the level expected and raised, the first alarm line and the
-lead = (crash line − first critical line) / (crash line − onset line), then the
-totals against the targets.
+    after_help = "Reads every case of a labelled set through the same pipeline as `scan` and
+prints, per set, a table: the level expected and raised, the first alarm line
+and the lead = (crash line − first critical line) / (crash line − onset line),
+then the set's totals against the targets.
+
+Sets:
+  catalogue   the labelled demo catalogue (the default)
+  variants    the catalogue with twice and three times the output interval
+              and other noise seeds (cases the thresholds were not set on)
 
 Examples:
   rhoscope evaluate
   rhoscope evaluate --case chain-stop-cd
   rhoscope evaluate --variants
+  rhoscope evaluate --set variants --case chain-stop-cd
 
-Exit codes: 0 targets met, 1 targets missed, 3 usage error."
+Exit codes: 0 every set meets its targets, 1 a set misses them, 3 usage error."
 )]
 pub struct EvaluateArgs {
-    /// Only the case of this name (repeatable).
+    /// Only the case of this name and the cases derived from it (repeatable).
     #[arg(long = "case", value_name = "NAME")]
     pub cases: Vec<String>,
-    /// Also run variants the detectors were not tuned on: every case written
-    /// with twice and three times the output interval, and with other noise seeds.
+    /// Also score the variants set (same as adding `--set variants`).
     #[arg(long)]
     pub variants: bool,
+    /// Score this set (repeatable; default: catalogue). See the list below.
+    #[arg(long = "set", value_name = "NAME")]
+    pub sets: Vec<String>,
 }

@@ -6,10 +6,10 @@ use std::path::Path;
 
 use anyhow::{Context, bail};
 
-use crate::alarm::Level;
 use crate::cli::demo::DemoArgs;
 use crate::demo::live::{LiveEnd, LiveOptions, write_live};
 use crate::demo::{DEMO_SCENARIO, Scenario, catalogue, find};
+use crate::finding::Level;
 use crate::outfile::same_file;
 
 /// Run `rhoscope demo`; returns the exit code.

@@ -5,7 +5,7 @@ use std::path::{Path, PathBuf};
 
 use anyhow::{Context, anyhow};
 
-use crate::alarm::Level;
+use crate::finding::Level;
 use crate::outfile::{Output, OutputKind, Watched, check_outputs};
 use crate::report::ScanReport;
 use crate::report_plot::{ImageFormat, PlotCollector, render};

@@ -11,7 +11,6 @@ use std::time::{Duration, Instant};
 use anyhow::{Context, bail};
 
 use crate::act::{ActionSpec, Escalation, EscalationConfig, EventLog, ProcessId};
-use crate::alarm::Level;
 use crate::app::feed::Feed;
 use crate::app::run::{Pacing, Ticker};
 use crate::app::stopper::{Armed, Stopper, TICK};
@@ -19,6 +18,7 @@ use crate::app::{AppState, Config, StopState};
 use crate::cli::follow::POLL_DEFAULT;
 use crate::cli::watch::WatchArgs;
 use crate::commands::guard::{check_action_outputs, escalation_from_args};
+use crate::finding::Level;
 use crate::settings::Settings;
 use crate::source::{FollowConfig, Follower};
 use crate::tui;

@@ -21,7 +21,7 @@ pub mod setup;
 use std::io::{self, Write};
 use std::sync::OnceLock;
 
-use crate::alarm::Level;
+use crate::finding::Level;
 
 pub use run::{Run, Setup, Summary};
 

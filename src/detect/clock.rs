@@ -49,12 +49,6 @@ impl Clock {
         }
     }
 
-    /// True when a step counter or a step size tells how many solver steps
-    /// separate two outputs.
-    pub fn knows_steps(&self) -> bool {
-        self.step_col.is_some() || (self.dt_col.is_some() && self.time_col.is_some())
-    }
-
     /// Column of the simulated time, if any.
     pub fn time_col(&self) -> Option<usize> {
         self.time_col

@@ -5,8 +5,8 @@
 //! into the model. A linear or decelerating drift stays a warning.
 
 use super::balance::{BalanceReading, EnergyBalance, term_name};
-use super::{DetectSettings, Detector, Evidence, Finding, Sample, Shared, forecast};
-use crate::alarm::Level;
+use super::{DetectSettings, Detector, Sample, Shared, forecast};
+use crate::finding::{Evidence, Finding, Level};
 
 /// Rows the error must stay beyond the threshold before a warning (persistence).
 const PERSIST_ROWS: u32 = 3;
@@ -230,7 +230,6 @@ impl Detector for Energy {
             };
             self.level = new_level;
             out.push(Finding {
-                detector: "energy",
                 level: new_level,
                 line: sample.line,
                 time,

@@ -5,8 +5,8 @@
 //! the measured wall time per step when following live. Natural logarithms
 //! keep the arithmetic finite even for X = f64::MAX (ln X ≈ 709.78).
 
-use super::Evidence;
 use super::clock::Clock;
+use crate::finding::Evidence;
 
 /// Solver steps until |x| reaches `bound` when growing by `rho_step` per step.
 /// `None` when there is no growth or the inputs are unusable.

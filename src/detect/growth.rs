@@ -23,8 +23,8 @@ use nalgebra::Complex;
 
 use super::clock::Clock;
 use super::modes::{self, Analysis, GrowingMode};
-use super::{DetectSettings, Detector, Evidence, Finding, Sample, Shared, Status, forecast};
-use crate::alarm::Level;
+use super::{DetectSettings, Detector, Sample, Shared, Status, forecast};
+use crate::finding::{Evidence, Finding, Level};
 use crate::parse::roles::{Role, RoleMap};
 use crate::schemes::{Scheme, critical_omega, omega_at_phase, omega_at_radius};
 
@@ -320,7 +320,6 @@ impl Growth {
                 if self.level > Level::Ok && self.quiet_fits >= QUIET_FITS_TO_CLEAR {
                     self.level = Level::Ok;
                     out.push(Finding {
-                        detector: "growth",
                         level: Level::Ok,
                         line,
                         time: clock.time,
@@ -429,7 +428,6 @@ impl Growth {
         if numerical && self.level < Level::Critical {
             self.level = Level::Critical;
             out.push(Finding {
-                detector: "growth",
                 level: Level::Critical,
                 line,
                 time: clock.time,

@@ -1,8 +1,12 @@
-//! Online detectors: each one is fed rows in file order and may emit [`Finding`]s.
-//! Pure and causal: no clocks (arrival instants come in as data), no files; a
-//! decision at line L sees rows up to L only. The [`Engine`] owns one of each
-//! detector for the segment being read and keeps a [`Status`] of the latest
-//! estimates for the dashboard.
+//! Online detectors: each one is fed rows in file order and may emit
+//! [`Finding`]s. Pure and causal: no clocks (arrival instants come in as
+//! data), no files; a decision at line L sees rows up to L only. The
+//! [`Engine`] owns one of each detector for the segment being read — nonfinite,
+//! growth, energy, solver, step — ticks the [`Shared`] clock and balance once
+//! per row, names every finding with its detector's [`Detector::name`], and
+//! keeps a [`Status`] of the latest estimates for the dashboard. `forecast.rs`
+//! (steps and time to the overflow bound) and `modes.rs` (one DMD fit) serve
+//! the detectors; [`replay`] runs rows through an engine and an alarm book.
 
 pub mod balance;
 pub mod clock;
@@ -11,10 +15,10 @@ pub mod forecast;
 pub mod growth;
 pub mod modes;
 pub mod nonfinite;
-pub mod score;
+pub mod solver;
 pub mod step;
 
-use crate::alarm::Level;
+use crate::finding::{Evidence, Finding};
 use crate::parse::Schema;
 use crate::parse::roles::RoleMap;
 
@@ -34,80 +38,6 @@ pub fn finite_at(values: &[f64], col: Option<usize>) -> Option<f64> {
     col.and_then(|i| values.get(i))
         .copied()
         .filter(|v| v.is_finite())
-}
-
-/// Quantitative evidence attached to a finding; every field optional (and
-/// left out of JSON when absent).
-#[derive(Debug, Clone, Default, PartialEq, serde::Serialize, serde::Deserialize)]
-#[serde(default)]
-pub struct Evidence {
-    /// Spectral radius of the fitted map per output interval.
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pub growth_per_output: Option<f64>,
-    /// Spectral radius per solver step (|μ|^(1/k) when output every k steps).
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pub growth_per_step: Option<f64>,
-    /// Growth rate per unit simulated time (1/s).
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pub growth_rate_per_s: Option<f64>,
-    /// Frequency of the dominant growing mode (Hz, simulated time).
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pub frequency_hz: Option<f64>,
-    /// Energy balance error relative to the energy scale (fraction, signed; + = created).
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pub balance_error: Option<f64>,
-    /// Solver steps until overflow.
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pub forecast_steps: Option<f64>,
-    /// Simulated time at overflow.
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pub forecast_time: Option<f64>,
-    /// Wall-clock seconds until overflow (live only).
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pub forecast_wall_s: Option<f64>,
-    /// Line where the growing mode is estimated to have started.
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pub onset_line: Option<u64>,
-    /// Simulated time of the onset.
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pub onset_time: Option<f64>,
-    /// Stability margin at the observed frequency when the scheme is declared
-    /// (Ω_crit/Ω − 1; negative means past the limit).
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pub stability_margin: Option<f64>,
-}
-
-impl Evidence {
-    /// Fill the growth, forecast, onset and margin fields that are still
-    /// empty from `other` (the balance error is left alone).
-    pub fn fill_growth_from(&mut self, other: &Evidence) {
-        let fill = |a: &mut Option<f64>, b: Option<f64>| *a = a.or(b);
-        fill(&mut self.growth_per_output, other.growth_per_output);
-        fill(&mut self.growth_per_step, other.growth_per_step);
-        fill(&mut self.growth_rate_per_s, other.growth_rate_per_s);
-        fill(&mut self.frequency_hz, other.frequency_hz);
-        fill(&mut self.forecast_steps, other.forecast_steps);
-        fill(&mut self.forecast_time, other.forecast_time);
-        fill(&mut self.forecast_wall_s, other.forecast_wall_s);
-        fill(&mut self.onset_time, other.onset_time);
-        fill(&mut self.stability_margin, other.stability_margin);
-        self.onset_line = self.onset_line.or(other.onset_line);
-    }
-}
-
-/// What a detector concluded at one line.
-#[derive(Debug, Clone, PartialEq)]
-pub struct Finding {
-    /// Detector name: `nonfinite`, `growth`, `energy`, `step`, `forecast`, ...
-    pub detector: &'static str,
-    /// `Ok` clears a condition this detector raised before (for hysteresis).
-    pub level: Level,
-    pub line: u64,
-    /// Simulated time at `line`, when a time column exists.
-    pub time: Option<f64>,
-    /// One sentence in the trade's words.
-    pub message: String,
-    pub evidence: Evidence,
 }
 
 /// Thresholds and options of the detectors (validated by `settings`).
@@ -168,7 +98,8 @@ impl Shared {
 
 /// An online detector.
 pub trait Detector {
-    /// Short name used in alarms.
+    /// Short name used in alarms; the engine pairs every finding of this
+    /// detector with it.
     fn name(&self) -> &'static str;
     /// Feed one row, with the quantities the engine derived from it; push
     /// any findings to `out`.
@@ -186,6 +117,8 @@ pub struct Engine {
     shared: Shared,
     detectors: Vec<Box<dyn Detector + Send>>,
     status: Status,
+    /// Findings of one detector on the current row, before they are named.
+    scratch: Vec<Finding>,
 }
 
 impl Engine {
@@ -195,20 +128,27 @@ impl Engine {
             Box::new(nonfinite::NonFinite::new(schema, roles)),
             Box::new(growth::Growth::new(roles, settings)),
             Box::new(energy::Energy::new(settings)),
+            Box::new(solver::Solver::new(roles)),
             Box::new(step::StepSize::new(roles)),
         ];
         Self {
             shared: Shared::new(roles),
             detectors,
             status: Status::default(),
+            scratch: Vec::new(),
         }
     }
 
-    /// Feed one row to every detector; findings are appended to `out`.
-    pub fn feed(&mut self, sample: &Sample, out: &mut Vec<Finding>) {
+    /// Feed one row to every detector; findings are appended to `out`, each
+    /// with the [`Detector::name`] of the detector that made it.
+    pub fn feed(&mut self, sample: &Sample, out: &mut Vec<(&'static str, Finding)>) {
         self.shared.tick(sample);
         for d in &mut self.detectors {
-            d.feed(sample, &self.shared, out);
+            d.feed(sample, &self.shared, &mut self.scratch);
+            if !self.scratch.is_empty() {
+                let name = d.name();
+                out.extend(self.scratch.drain(..).map(|f| (name, f)));
+            }
         }
     }
 
@@ -252,8 +192,8 @@ where
             },
             &mut findings,
         );
-        for f in findings.drain(..) {
-            if let Some(a) = book.take(&f) {
+        for (detector, f) in findings.drain(..) {
+            if let Some(a) = book.take(detector, &f) {
                 alarms.push(a);
             }
         }

@@ -6,8 +6,8 @@
 //! number the checks could use. Comparisons use `is_finite`, since `NaN > x` is
 //! always false.
 
-use super::{Detector, Evidence, Finding, Sample, Shared};
-use crate::alarm::Level;
+use super::{Detector, Sample, Shared};
+use crate::finding::{Evidence, Finding, Level};
 use crate::parse::roles::{Role, RoleMap};
 use crate::parse::{Schema, is_field_overflow};
 
@@ -48,7 +48,6 @@ impl NonFinite {
 
     fn finding(&self, level: Level, line: u64, message: String) -> Finding {
         Finding {
-            detector: "nonfinite",
             level,
             line,
             time: self.last_time,

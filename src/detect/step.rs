@@ -1,13 +1,12 @@
 //! Step-size detector. Explicit step sizes follow the smallest element
 //! (Δt ≤ L/c, Courant), so a step that falls by orders of magnitude while
 //! simulated time stalls means elements are distorting towards inversion.
-//! A dip that recovers (contact, an adaptive controller) is normal. For
-//! implicit runs it also watches nonlinear iterations climbing, residuals
-//! diverging and repeated cutbacks.
+//! A dip that recovers (contact, an adaptive controller) is normal. The
+//! signs of a struggling implicit solver are the solver detector's.
 
 use super::clock::Clock;
-use super::{Detector, Evidence, Finding, Sample, Shared};
-use crate::alarm::Level;
+use super::{Detector, Sample, Shared};
+use crate::finding::{Evidence, Finding, Level};
 use crate::parse::roles::{Role, RoleMap};
 
 /// Rows of recent history kept for trends.
@@ -34,34 +33,17 @@ const PERSIST_ROWS: usize = 3;
 const STALL_ROWS: usize = TREND_ROWS;
 /// A raised step alarm clears once the step is back above this fraction of its peak.
 const RECOVERED: f64 = 0.1;
-/// Residual growth over the trend window that reads as divergence.
-const RESIDUAL_DIVERGING: f64 = 1e3;
-/// Cutbacks among the last `TREND_ROWS` rows that read as repeated.
-const REPEATED_CUTBACKS: usize = 4;
-/// Iterations per step, as a multiple of the early average, that read as climbing.
-const ITERATIONS_CLIMB: f64 = 3.0;
 
 /// The step-size detector.
 pub struct StepSize {
     step_col: Option<usize>,
     time_col: Option<usize>,
-    iter_col: Option<usize>,
-    res_col: Option<usize>,
-    cut_col: Option<usize>,
     prev_time: Option<f64>,
     prev_step: Option<f64>,
     peak: f64,
     dts: [f64; DECLINE_ROWS],
-    res: [f64; TREND_ROWS],
-    cuts: [bool; TREND_ROWS],
     rows: usize,
-    iter_early: (f64, u32),
-    iter_recent: f64,
-    prev_cut: Option<f64>,
-    cut_decreased: bool,
     level: Level,
-    implicit_level: Level,
-    last_dt: Option<f64>,
     below: usize,
 }
 
@@ -71,23 +53,12 @@ impl StepSize {
         Self {
             step_col: roles.find(Role::StepNumber),
             time_col: roles.find(Role::Time),
-            iter_col: roles.find(Role::Iterations),
-            res_col: roles.find(Role::Residual),
-            cut_col: roles.find(Role::Cutbacks),
             prev_time: None,
             prev_step: None,
             peak: 0.0,
             dts: [f64::NAN; DECLINE_ROWS],
-            res: [f64::NAN; TREND_ROWS],
-            cuts: [false; TREND_ROWS],
             rows: 0,
-            iter_early: (0.0, 0),
-            iter_recent: 0.0,
-            prev_cut: None,
-            cut_decreased: false,
             level: Level::Ok,
-            implicit_level: Level::Ok,
-            last_dt: None,
             below: 0,
         }
     }
@@ -106,64 +77,6 @@ impl StepSize {
         self.prev_step = s.or(self.prev_step);
         from_col.or(derived).filter(|v| *v > 0.0)
     }
-
-    fn implicit(&mut self, values: &[f64], slot: usize) -> Option<(Level, String)> {
-        let get = |c: Option<usize>| super::finite_at(values, c);
-        let mut worst: Option<(Level, String)> = None;
-        if let Some(it) = get(self.iter_col) {
-            if self.iter_early.1 < 32 {
-                self.iter_early.0 += it;
-                self.iter_early.1 += 1;
-            }
-            self.iter_recent += 0.1 * (it - self.iter_recent);
-            let early = self.iter_early.0 / f64::from(self.iter_early.1.max(1));
-            if self.iter_early.1 >= 32 && early > 0.0 && self.iter_recent > ITERATIONS_CLIMB * early
-            {
-                worst = Some((
-                    Level::Warning,
-                    format!(
-                        "Nonlinear iterations per step climbing: {:.1} now against {:.1} early in the run.",
-                        self.iter_recent, early
-                    ),
-                ));
-            }
-        }
-        if let Some(r) = get(self.res_col) {
-            self.res[slot] = r.abs();
-            let old = self.res[(slot + 1) % TREND_ROWS];
-            if self.rows >= TREND_ROWS && old > 0.0 && r.abs() > RESIDUAL_DIVERGING * old {
-                worst = Some((
-                    Level::Warning,
-                    format!(
-                        "Residual diverging: ×{:.0} over the last {TREND_ROWS} outputs.",
-                        r.abs() / old
-                    ),
-                ));
-            }
-        }
-        if let Some(c) = get(self.cut_col) {
-            if let Some(p) = self.prev_cut
-                && c < p
-            {
-                self.cut_decreased = true;
-            }
-            let event = if self.cut_decreased {
-                c > 0.0
-            } else {
-                self.prev_cut.is_some_and(|p| c > p)
-            };
-            self.prev_cut = Some(c);
-            self.cuts[slot] = event;
-            let n = self.cuts.iter().filter(|b| **b).count();
-            if n >= REPEATED_CUTBACKS {
-                worst = Some((
-                    Level::Warning,
-                    format!("Repeated step cutbacks: {n} of the last {TREND_ROWS} outputs."),
-                ));
-            }
-        }
-        worst
-    }
 }
 
 impl Detector for StepSize {
@@ -173,38 +86,12 @@ impl Detector for StepSize {
 
     fn feed(&mut self, sample: &Sample, shared: &Shared, out: &mut Vec<Finding>) {
         let clock = &shared.clock;
-        let slot = self.rows % TREND_ROWS;
-        let implicit = self.implicit(sample.values, slot);
         let dt = self.dt(sample.values, clock);
         self.rows += 1;
         let time = clock.time;
-        if let Some((lvl, msg)) = &implicit {
-            if *lvl > self.implicit_level {
-                self.implicit_level = *lvl;
-                out.push(Finding {
-                    detector: "solver",
-                    level: *lvl,
-                    line: sample.line,
-                    time,
-                    message: msg.clone(),
-                    evidence: Evidence::default(),
-                });
-            }
-        } else if self.implicit_level > Level::Ok && self.rows.is_multiple_of(TREND_ROWS) {
-            self.implicit_level = Level::Ok;
-            out.push(Finding {
-                detector: "solver",
-                level: Level::Ok,
-                line: sample.line,
-                time,
-                message: "Nonlinear solver back to normal.".into(),
-                evidence: Evidence::default(),
-            });
-        }
         let Some(dt) = dt else {
             return;
         };
-        self.last_dt = Some(dt);
         let long_slot = (self.rows - 1) % DECLINE_ROWS;
         let long_ago = self.dts[long_slot];
         let old = self.dts[(self.rows - 1 + DECLINE_ROWS - TREND_ROWS) % DECLINE_ROWS];
@@ -266,7 +153,6 @@ impl Detector for StepSize {
             };
             self.level = level;
             out.push(Finding {
-                detector: "step",
                 level,
                 line: sample.line,
                 time,

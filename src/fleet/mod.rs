@@ -13,7 +13,8 @@ pub mod tracker;
 use std::cmp::Ordering;
 use std::path::PathBuf;
 
-use crate::alarm::{Alarm, Level};
+use crate::alarm::Alarm;
+use crate::finding::Level;
 use crate::parse::roles::{Role, RoleMap};
 use crate::parse::{Schema, SegmentReason};
 use crate::pipeline::PipelineSink;
@@ -147,7 +148,7 @@ impl RunRow {
     }
 
     /// Take the latest estimates of the pipeline's detectors.
-    pub fn take_status(&mut self, evidence: &crate::detect::Evidence) {
+    pub fn take_status(&mut self, evidence: &crate::finding::Evidence) {
         self.growth_per_step = evidence.growth_per_step;
         self.forecast_wall_s = evidence.forecast_wall_s;
         self.forecast_at_s = evidence.forecast_wall_s.and(self.arrival_s);
@@ -262,7 +263,7 @@ fn compare(a: &RunRow, b: &RunRow, now_s: f64, stall_after_s: f64) -> Ordering {
 mod tests {
     #![allow(clippy::unwrap_used)]
     use super::*;
-    use crate::detect::Evidence;
+    use crate::finding::Evidence;
 
     fn alarm(level: Level) -> Alarm {
         Alarm {

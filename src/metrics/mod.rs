@@ -190,7 +190,8 @@ pub fn render(rows: &[&RunRow], ctx: &Context) -> String {
 mod tests {
     #![allow(clippy::unwrap_used)]
     use super::*;
-    use crate::alarm::{Alarm, Level};
+    use crate::alarm::Alarm;
+    use crate::finding::Level;
     use crate::pipeline::PipelineSink;
     use std::collections::HashSet;
     use std::path::PathBuf;

@@ -3,8 +3,9 @@
 //! sampled between chunks, and markers for alarms, onset, restarts and the
 //! first non-finite value. Bounded memory whatever the history's length.
 
-use crate::alarm::{Alarm, Level};
-use crate::detect::Evidence;
+use crate::alarm::Alarm;
+use crate::finding::Evidence;
+use crate::finding::Level;
 use crate::parse::roles::{EnergyTerm, Role, RoleMap};
 use crate::parse::{Schema, SegmentReason, SkipReason};
 use crate::pipeline::PipelineSink;

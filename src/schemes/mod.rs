@@ -207,15 +207,6 @@ impl Scheme {
             _ => Ok(()),
         }
     }
-
-    /// True for schemes that need no solve per step.
-    pub fn is_explicit(&self) -> bool {
-        match *self {
-            Scheme::ForwardEuler | Scheme::Rk4 | Scheme::CentralDifference => true,
-            Scheme::Newmark { beta, .. } => beta == 0.0,
-            _ => false,
-        }
-    }
 }
 
 fn need(scheme: &'static str, param: &'static str, v: Option<f64>) -> Result<f64, SchemeError> {

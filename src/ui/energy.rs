@@ -5,8 +5,8 @@ use ratatui::Frame;
 use ratatui::layout::Rect;
 use ratatui::text::{Line, Span};
 
-use crate::alarm::Level;
 use crate::app::AppState;
+use crate::finding::Level;
 use crate::parse::roles::EnergyTerm;
 
 use super::chart::{self, Series, Spec, legend_name};

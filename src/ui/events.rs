@@ -6,8 +6,8 @@ use ratatui::layout::Rect;
 use ratatui::text::{Line, Span};
 use ratatui::widgets::{Block, Borders, Paragraph, Wrap};
 
-use crate::alarm::Level;
 use crate::app::{AppState, Event};
+use crate::finding::Level;
 
 use super::format::{count, num};
 use super::theme::{Theme, state_word, symbol};

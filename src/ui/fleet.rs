@@ -10,8 +10,8 @@ use ratatui::style::{Modifier, Style};
 use ratatui::text::{Line, Span};
 use ratatui::widgets::{Cell, Paragraph, Row, Table, TableState};
 
-use crate::alarm::Level;
 use crate::app::fleet::FleetView;
+use crate::finding::Level;
 use crate::fleet::RunState;
 
 use super::format;

@@ -8,9 +8,9 @@ use ratatui::layout::Rect;
 use ratatui::text::{Line, Span};
 use ratatui::widgets::{Block, Borders, Paragraph};
 
-use crate::alarm::Level;
 use crate::app::AppState;
 use crate::app::state::{D_BALANCE, D_GROWTH};
+use crate::finding::Level;
 
 use super::chart::{self, Series, Spec};
 use super::format::{count, duration, hz, num, pct};

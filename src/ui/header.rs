@@ -8,8 +8,8 @@ use ratatui::layout::Rect;
 use ratatui::text::{Line, Span};
 use ratatui::widgets::Paragraph;
 
-use crate::alarm::Level;
 use crate::app::{AppState, StopState};
+use crate::finding::Level;
 
 use super::format::{count, duration, num};
 use super::theme::{Theme, state_word, symbol};

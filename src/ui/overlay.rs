@@ -7,9 +7,9 @@ use ratatui::layout::Rect;
 use ratatui::text::{Line, Span};
 use ratatui::widgets::{Block, Borders, Clear, Paragraph, Wrap};
 
-use crate::alarm::Level;
 use crate::app::update::KEYS;
 use crate::app::{AppState, StopState};
+use crate::finding::Level;
 
 use super::theme::Theme;
 

@@ -5,7 +5,7 @@
 use ratatui::style::{Color, Modifier, Style};
 use ratatui::symbols::Marker;
 
-use crate::alarm::Level;
+use crate::finding::Level;
 
 /// The styles used by every panel.
 #[derive(Debug, Clone, Copy)]

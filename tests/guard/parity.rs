@@ -60,7 +60,7 @@ fn guard_alarms(bytes: &[u8], chunk: usize) -> Vec<Alarm> {
 
 /// Line, detector and level. Messages may differ only where guard adds the
 /// wall-clock forecast it can measure live and scan cannot.
-fn key(a: &Alarm) -> (u64, String, rhoscope::alarm::Level) {
+fn key(a: &Alarm) -> (u64, String, rhoscope::finding::Level) {
     (a.line, a.detector.to_string(), a.level)
 }
 

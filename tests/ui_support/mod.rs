@@ -4,9 +4,11 @@
 
 use std::time::Duration;
 
-use rhoscope::alarm::{Alarm, Level};
+use rhoscope::alarm::Alarm;
 use rhoscope::app::{AppState, Batch, Config, Item, Msg};
-use rhoscope::detect::{Evidence, Status};
+use rhoscope::detect::Status;
+use rhoscope::finding::Evidence;
+use rhoscope::finding::Level;
 use rhoscope::parse::roles::{EnergyTerm, Role, RoleMap};
 use rhoscope::parse::{Column, Schema};
 

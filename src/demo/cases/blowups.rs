@@ -5,12 +5,12 @@
 
 use super::families::{bridge_guide, chain_ramp, chain_stop, modal_start};
 use super::{Spec, spec};
-use crate::alarm::Level;
 use crate::demo::build::{chain, disp, omega_max0, omega_with_spring, setup, to_ground, vel};
 use crate::demo::integrate::Scheme;
 use crate::demo::layout::Layout;
 use crate::demo::model::{Law, Load, Shape};
 use crate::demo::run::{Columns, Setup, StepRule};
+use crate::finding::Level;
 
 /// The blow-ups of the first catalogue and its plain healthy ramp, in order.
 pub fn specs() -> Vec<Spec> {

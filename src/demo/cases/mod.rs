@@ -9,8 +9,8 @@ mod blowups;
 pub mod families;
 mod traps;
 
-use crate::alarm::Level;
 use crate::demo::run::Setup;
+use crate::finding::Level;
 
 /// A case before it is labelled.
 #[derive(Debug, Clone, Copy)]

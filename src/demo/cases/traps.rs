@@ -6,7 +6,6 @@ use nalgebra::DVector;
 
 use super::families::{adaptive_dip_with, chain_ramp, chain_stop, impact, modal_start};
 use super::{Spec, spec};
-use crate::alarm::Level;
 use crate::demo::build::{
     Truss, bridge, chain, disp, mast, modes, omega_max0, omega_with_spring, setup,
     solve_increasing, stiffness0, to_ground, vel,
@@ -15,6 +14,7 @@ use crate::demo::integrate::Scheme;
 use crate::demo::layout::Layout;
 use crate::demo::model::{Conn, Dashpot, Element, Law, Load, Model, Shape};
 use crate::demo::run::{Noise, Restart, Setup, StepRule};
+use crate::finding::Level;
 
 /// The healthy traps, the drifts, the demo scenario and the violent stop, in order.
 pub fn specs() -> Vec<Spec> {

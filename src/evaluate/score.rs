@@ -1,11 +1,12 @@
-//! Scoring of the detectors on labelled histories: per case, the level
-//! expected and the level raised, the first alarm line and the lead
-//! (crash line − first critical line) / (crash line − onset line); over all
-//! cases, blow-ups detected before their crash line, false critical alarms,
-//! healthy cases warned, drift cases warned, and the median lead. Pure: it is
-//! given labels and alarms, and runs nothing.
+//! Scoring of one labelled history: the level expected and the level raised,
+//! the first alarm line and the lead (crash line − first critical line) /
+//! (crash line − onset line); over a set of cases, blow-ups detected before
+//! their crash line, false critical alarms, healthy cases warned, drift cases
+//! warned, and the median lead. Pure: it is given labels and alarms, and runs
+//! nothing.
 
-use crate::alarm::{Alarm, Level};
+use crate::alarm::Alarm;
+use crate::finding::Level;
 
 /// The label of one case.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -174,7 +175,7 @@ pub fn table(cases: &[CaseScore]) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::detect::Evidence;
+    use crate::finding::Evidence;
 
     fn alarm(level: Level, line: u64) -> Alarm {
         Alarm {
