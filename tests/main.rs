@@ -14,6 +14,7 @@ mod parse_props;
 mod real_solvers;
 mod report_plot;
 mod scan_cli;
+mod shell_cli;
 mod tmux_support;
 mod ui_actions;
 mod ui_dashboard;

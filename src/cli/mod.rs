@@ -11,6 +11,7 @@ pub mod guard;
 pub mod input;
 pub mod limits;
 pub mod scan;
+pub mod shell;
 pub mod watch;
 
 use clap::{Parser, Subcommand};
@@ -42,4 +43,8 @@ pub enum Command {
     Fleet(fleet::FleetArgs),
     /// Score the detectors on the labelled demo cases (the same pipeline as scan).
     Evaluate(evaluate::EvaluateArgs),
+    /// Write a shell completion script to stdout (bash, zsh, fish, elvish, powershell).
+    Completions(shell::CompletionsArgs),
+    /// Write the manual page (roff) to stdout.
+    Man(shell::ManArgs),
 }

@@ -9,6 +9,7 @@ pub mod guard;
 pub mod limits;
 pub mod scan;
 pub mod scan_plot;
+pub mod shell;
 pub mod watch;
 pub mod watch_fleet;
 
@@ -38,6 +39,8 @@ pub fn run_from_env() -> i32 {
         Command::Demo(a) => demo::run(a),
         Command::Fleet(a) => fleet::run(a),
         Command::Evaluate(a) => evaluate::run(a),
+        Command::Completions(a) => shell::completions(a),
+        Command::Man(a) => shell::man(a),
     };
     match result {
         Ok(code) => code,
