@@ -33,6 +33,7 @@ fn layout() -> (Schema, RoleMap) {
                 unit: None,
             })
             .collect(),
+        ..Schema::default()
     };
     let n = roles.len();
     (

@@ -56,6 +56,7 @@ fn state() -> AppState {
                             unit: None,
                         })
                         .collect(),
+                    ..Schema::default()
                 },
                 roles: RoleMap {
                     roles: roles.clone(),

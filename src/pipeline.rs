@@ -45,6 +45,10 @@ pub struct Pipeline {
 
 struct State {
     detect: DetectSettings,
+    /// The scheme from `--scheme` or the configuration (it comes before the file's).
+    settings_scheme: Option<crate::schemes::Scheme>,
+    /// Which scheme is used, and why, in words.
+    scheme_note: Option<String>,
     rules: RoleRules,
     schema: Schema,
     roles: RoleMap,
@@ -67,6 +71,10 @@ impl RowSink for Adapter<'_> {
         let s = &mut *self.state;
         s.schema = schema.clone();
         s.roles = assign(schema, &s.rules);
+        let (scheme, note) =
+            crate::schemes::names::choose(s.settings_scheme, schema.declared.scheme.as_ref());
+        s.detect.scheme = scheme;
+        s.scheme_note = note;
         s.engine = Some(Engine::new(&s.schema, &s.roles, &s.detect));
         s.book.reset();
         self.out.schema(line, &s.schema, &s.roles);
@@ -116,6 +124,8 @@ impl Pipeline {
             reader: Reader::new(&settings.parse, &settings.roles),
             state: State {
                 detect: settings.detect.clone(),
+                settings_scheme: settings.detect.scheme,
+                scheme_note: None,
                 rules: settings.roles.clone(),
                 schema: Schema::default(),
                 roles: RoleMap::default(),
@@ -166,6 +176,12 @@ impl Pipeline {
             Some(e) => e.status(),
             None => &self.state.empty,
         }
+    }
+
+    /// Which integration scheme the detectors use and where it came from
+    /// (`--scheme` and the configuration before a `# scheme:` line of the file).
+    pub fn scheme_note(&self) -> Option<&str> {
+        self.state.scheme_note.as_deref()
     }
 
     /// Data rows read so far.

@@ -8,7 +8,7 @@ use serde::{Deserialize, Serialize};
 use crate::alarm::Alarm;
 use crate::finding::Level;
 use crate::parse::roles::RoleMap;
-use crate::parse::{Schema, SegmentReason, SkipReason};
+use crate::parse::{NamesFrom, Schema, SegmentReason, SkipReason};
 use crate::pipeline::PipelineSink;
 
 /// How many skipped lines are listed one by one (all are counted).
@@ -43,6 +43,48 @@ pub struct ScanReport {
     pub segments: Vec<SegmentEntry>,
     /// Skipped lines and notes, the first [`MAX_LISTED_SKIPS`] of them.
     pub skipped: Vec<SkipEntry>,
+    /// Text lines outside any table (a banner, an echoed input deck, run
+    /// statistics): neither rows nor skipped rows.
+    #[serde(default)]
+    pub text_lines_outside_table: u64,
+    /// How the columns of the last segment were found.
+    #[serde(default)]
+    pub table: TableEntry,
+}
+
+/// How the columns were found: where their names came from, what the reader
+/// inferred, what the file declares.
+#[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
+pub struct TableEntry {
+    /// Where the names came from, in words (`header at line 12`,
+    /// `no header: generic names c1..cN`).
+    pub names_from: String,
+    /// 1-based line of the header, when the names come from a header line.
+    pub header_line: Option<u64>,
+    /// What the reader inferred or noticed, one sentence each (output stride,
+    /// step size from time differences, a banner over some columns).
+    pub notes: Vec<String>,
+    /// The integration scheme a comment line declares (`# scheme: …`), as written.
+    pub declared_scheme: Option<String>,
+    /// A step size a text line declares (`timestep 0.005`).
+    pub declared_step_size: Option<f64>,
+}
+
+impl TableEntry {
+    /// The entry for a schema.
+    pub fn of(schema: &Schema) -> TableEntry {
+        let header_line = match schema.names_from {
+            NamesFrom::HeaderLine(l) | NamesFrom::CommentLine(l) => Some(l),
+            _ => None,
+        };
+        TableEntry {
+            names_from: schema.names_from.to_string(),
+            header_line,
+            notes: schema.notes.clone(),
+            declared_scheme: schema.declared.scheme.as_ref().map(|(_, s)| s.clone()),
+            declared_step_size: schema.declared.step_size.map(|(_, v)| v),
+        }
+    }
 }
 
 /// One alarm in the report.
@@ -111,6 +153,8 @@ pub struct ReportBuilder {
     columns: Vec<ColumnEntry>,
     segments: Vec<SegmentEntry>,
     skipped: Vec<SkipEntry>,
+    outside: u64,
+    table: TableEntry,
 }
 
 impl PipelineSink for ReportBuilder {
@@ -131,6 +175,7 @@ impl PipelineSink for ReportBuilder {
 
     fn schema(&mut self, _line: u64, schema: &Schema, roles: &RoleMap) {
         self.columns = column_entries(schema, roles);
+        self.table = TableEntry::of(schema);
     }
 
     fn segment(&mut self, line: u64, reason: SegmentReason) {
@@ -146,6 +191,10 @@ impl PipelineSink for ReportBuilder {
     }
 
     fn skipped(&mut self, line: u64, reason: &SkipReason) {
+        if let SkipReason::OutsideTable { lines, .. } = reason {
+            self.outside += lines;
+            return;
+        }
         if self.skipped.len() < MAX_LISTED_SKIPS {
             self.skipped.push(SkipEntry {
                 line,
@@ -202,6 +251,8 @@ impl ReportBuilder {
             columns: self.columns,
             segments: self.segments,
             skipped: self.skipped,
+            text_lines_outside_table: self.outside,
+            table: self.table,
         }
     }
 }
@@ -265,6 +316,13 @@ impl ScanReport {
         }
         if self.skipped.len() > 5 {
             let _ = writeln!(s, "  … see --json for the full list of skipped lines");
+        }
+        if self.text_lines_outside_table > 0 {
+            let _ = writeln!(
+                s,
+                "  text lines outside the table ({})",
+                self.text_lines_outside_table
+            );
         }
         s
     }

@@ -18,6 +18,7 @@ fn layout(cols: &[(&str, Role)]) -> (Schema, RoleMap) {
                 unit: None,
             })
             .collect(),
+        ..Schema::default()
     };
     let roles = RoleMap {
         roles: cols.iter().map(|(_, r)| *r).collect(),

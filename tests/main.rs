@@ -11,6 +11,7 @@ mod hostile_paths;
 mod limits_cli;
 mod parse_formats;
 mod parse_props;
+mod parse_shapes;
 mod real_solvers;
 mod report_plot;
 mod scan_cli;

@@ -11,6 +11,8 @@ use rhoscope::parse::{
 #[derive(Debug, Default)]
 pub struct Events {
     pub schemas: Vec<(u64, Vec<String>)>,
+    /// The schemas as reported, whole (names' origin, inferences, notes).
+    pub full: Vec<Schema>,
     pub rows: Vec<(u64, Vec<f64>)>,
     pub segments: Vec<(u64, SegmentReason)>,
     pub skipped: Vec<(u64, SkipReason)>,
@@ -20,6 +22,7 @@ impl RowSink for Events {
     fn schema(&mut self, line: u64, schema: &Schema) {
         let names = schema.columns.iter().map(|c| c.name.clone()).collect();
         self.schemas.push((line, names));
+        self.full.push(schema.clone());
     }
     fn row(&mut self, line: u64, values: &[f64]) {
         self.rows.push((line, values.to_vec()));

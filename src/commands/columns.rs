@@ -6,10 +6,10 @@ use anyhow::{Context, bail};
 
 use crate::alarm::Alarm;
 use crate::cli::columns::ColumnsArgs;
-use crate::parse::Schema;
 use crate::parse::roles::RoleMap;
+use crate::parse::{Schema, SkipReason};
 use crate::pipeline::{Pipeline, PipelineSink};
-use crate::report::{ColumnEntry, column_entries};
+use crate::report::{ColumnEntry, TableEntry, column_entries};
 use crate::settings::Settings;
 
 /// Bytes read before giving up on finding a first row.
@@ -18,7 +18,12 @@ const LOOK_BYTES: u64 = 16 << 20;
 #[derive(Default)]
 struct FirstColumns {
     columns: Option<Vec<ColumnEntry>>,
+    table: TableEntry,
     rows: u64,
+    /// Text lines outside the table before its first row.
+    outside: u64,
+    /// Notes the reader made before the first row (encoding, header).
+    notes: Vec<String>,
 }
 
 impl PipelineSink for FirstColumns {
@@ -26,10 +31,21 @@ impl PipelineSink for FirstColumns {
     fn schema(&mut self, _line: u64, schema: &Schema, roles: &RoleMap) {
         if self.rows == 0 {
             self.columns = Some(column_entries(schema, roles));
+            self.table = TableEntry::of(schema);
         }
     }
     fn row(&mut self, _line: u64, _values: &[f64]) {
         self.rows += 1;
+    }
+    fn skipped(&mut self, line: u64, reason: &SkipReason) {
+        if self.rows > 0 {
+            return;
+        }
+        match reason {
+            SkipReason::OutsideTable { lines, .. } => self.outside += lines,
+            r if r.is_note() => self.notes.push(format!("line {line}: {r}")),
+            _ => {}
+        }
     }
 }
 
@@ -55,7 +71,7 @@ pub fn run(args: ColumnsArgs) -> anyhow::Result<i32> {
         read += n as u64;
         pipeline.feed(&buf[..n], None, &mut sink);
     }
-    let Some(columns) = sink.columns.filter(|_| sink.rows > 0) else {
+    let Some(columns) = sink.columns.clone().filter(|_| sink.rows > 0) else {
         bail!("{}: no data row, so no columns", args.file.display());
     };
     let text = if args.json {
@@ -63,10 +79,42 @@ pub fn run(args: ColumnsArgs) -> anyhow::Result<i32> {
         t.push('\n');
         t
     } else {
-        table(&columns)
+        let mut t = preface(&sink);
+        t.push_str(&table(&columns));
+        t.push_str(&notes(&sink, pipeline.scheme_note()));
+        t
     };
     super::scan::print(&text)?;
     Ok(0)
+}
+
+/// Where the names came from, before the table.
+fn preface(sink: &FirstColumns) -> String {
+    format!("names: {}\n", sink.table.names_from)
+}
+
+/// What the reader inferred and noticed, after the table.
+fn notes(sink: &FirstColumns, scheme: Option<&str>) -> String {
+    let t = &sink.table;
+    let mut lines: Vec<String> = t.notes.clone();
+    if sink.outside > 0 {
+        lines.push(format!(
+            "text lines outside the table before it ({}): banner, echoed input, statistics",
+            sink.outside
+        ));
+    }
+    lines.extend(scheme.map(str::to_owned));
+    if let Some(dt) = t.declared_step_size {
+        lines.push(format!("the file declares a step size of {dt:e}"));
+    }
+    lines.extend(sink.notes.iter().cloned());
+    let mut s = String::new();
+    for l in lines {
+        s.push_str("note: ");
+        s.push_str(&l);
+        s.push('\n');
+    }
+    s
 }
 
 /// The human table: column, unit, role, why.

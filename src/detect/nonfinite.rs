@@ -153,6 +153,7 @@ mod tests {
     fn detector(names: &[&str]) -> NonFinite {
         let schema = Schema {
             columns: names.iter().map(|n| split_unit(n)).collect(),
+            ..Schema::default()
         };
         let roles = assign(&schema, &RoleRules::default());
         NonFinite::new(&schema, &roles)

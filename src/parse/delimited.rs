@@ -133,7 +133,12 @@ pub enum LineKind {
     /// Every field is a word (not a number): a header.
     Header,
     /// Mixed: some fields numbers, some words.
-    Mixed,
+    Mixed {
+        /// The first field is a number (a damaged row rather than a sentence).
+        first_is_number: bool,
+        /// Number of fields.
+        fields: usize,
+    },
 }
 
 /// Classify a line by its fields; `scratch` is reused.
@@ -150,10 +155,29 @@ pub fn classify(line: &[u8], delimiter: Delimiter, scratch: &mut Vec<f64>) -> Li
         Delimiter::Byte(d) => line.split(|&b| b == d).collect(),
     };
     if fields.iter().any(|f| numeric(f)) {
-        LineKind::Mixed
+        LineKind::Mixed {
+            first_is_number: fields.first().is_some_and(|f| numeric(f)),
+            fields: fields.len(),
+        }
     } else {
         LineKind::Header
     }
+}
+
+/// A rule: a line drawn with `-`, `=`, `_`, `~`, `+` or `|` (at least three of
+/// the first four), as tables print under or above a header.
+pub fn is_rule(line: &[u8]) -> bool {
+    let drawn = line
+        .iter()
+        .filter(|b| matches!(b, b'-' | b'=' | b'_' | b'~'))
+        .count();
+    drawn >= 3
+        && line.iter().all(|b| {
+            matches!(
+                b,
+                b'-' | b'=' | b'_' | b'~' | b'+' | b'|' | b' ' | b'\t' | b'\r'
+            )
+        })
 }
 
 #[cfg(test)]
@@ -213,7 +237,21 @@ mod tests {
         );
         assert_eq!(
             classify(b"restart at step 100", Delimiter::Whitespace, &mut s),
-            LineKind::Mixed
+            LineKind::Mixed {
+                first_is_number: false,
+                fields: 4
+            }
         );
+        assert_eq!(
+            classify(b"1.0,abc", Delimiter::Byte(b','), &mut s),
+            LineKind::Mixed {
+                first_is_number: true,
+                fields: 2
+            }
+        );
+        assert!(is_rule(b"------  -------"));
+        assert!(is_rule(b"+=====+=====+"));
+        assert!(!is_rule(b"*****"));
+        assert!(!is_rule(b"--"));
     }
 }

@@ -1,8 +1,11 @@
 //! Header lines: decoding (UTF-8, or Latin-1 when the bytes are not UTF-8, so that a
 //! `µ` written by an old runtime survives), splitting into names with the csv crate
 //! where quotes may occur, and separating a unit from its name
-//! (`Time [s]`, `kinetic energy (J)`, `disp/mm`).
+//! (`Time [s]`, `kinetic energy (J)`, `disp/mm`); a banner spanning several
+//! columns (`------- stress [GPa] -------`) is not a name. Names are cleaned of
+//! control characters and terminal escapes here, before anything prints them.
 
+use super::unicode::clean_name;
 use super::{Column, Delimiter};
 
 /// Decode header bytes. Returns the text and whether the bytes were not UTF-8
@@ -119,7 +122,8 @@ fn spans(blank: impl Iterator<Item = bool>) -> Vec<(usize, usize)> {
 /// `Time [s]` → (`Time`, `s`); `kinetic energy (J)` → (`kinetic energy`, `J`);
 /// `disp/mm` → (`disp`, `mm`); `W_ext` → (`W_ext`, none).
 pub fn split_unit(raw: &str) -> Column {
-    let raw = raw.trim();
+    let cleaned = clean_name(raw);
+    let raw = cleaned.as_str();
     for (open, close) in [('[', ']'), ('(', ')'), ('{', '}')] {
         if let Some(stripped) = raw.strip_suffix(close)
             && let Some(at) = stripped.rfind(open)
@@ -147,6 +151,69 @@ pub fn split_unit(raw: &str) -> Column {
         name: raw.to_owned(),
         unit: None,
     }
+}
+
+/// A word made only of rule characters (`-----`, `=====`).
+fn is_rule_word(w: &str) -> bool {
+    w.len() >= 3 && w.chars().all(|c| matches!(c, '-' | '=' | '~' | '_'))
+}
+
+/// A whitespace-separated header with a banner over some columns,
+/// `Time[ps] Etot[eV] ---- stress [GPa] ----`: the names before and after the
+/// banner, and the banner's words (`stress [GPa]`). `None` without a run of
+/// rule characters among the words.
+pub fn banner(text: &str) -> Option<(Vec<String>, String, Vec<String>)> {
+    let toks: Vec<&str> = text.split_ascii_whitespace().collect();
+    let first = toks.iter().position(|t| is_rule_word(t))?;
+    let last = toks.iter().rposition(|t| is_rule_word(t))?;
+    let inside: Vec<&str> = toks[first..=last]
+        .iter()
+        .copied()
+        .filter(|t| !is_rule_word(t))
+        .collect();
+    // A single rule with words after it: the banner runs to the end.
+    let (words, after) = if first == last {
+        (toks[first + 1..].to_vec(), Vec::new())
+    } else {
+        (inside, toks[last + 1..].to_vec())
+    };
+    let before = whitespace_names(&toks[..first].join(" "));
+    let after = whitespace_names(&after.join(" "));
+    Some((before, clean_name(&words.join(" ")), after))
+}
+
+/// The columns of a banner header over `n` fields: names before and after it,
+/// generic `cK` names (with the banner's unit, if it has one) for the fields
+/// under it, and a note saying so. `None` when the names leave no field for the
+/// banner.
+pub fn banner_columns(text: &str, n: usize) -> Option<(Vec<Column>, String)> {
+    let (before, words, after) = banner(text)?;
+    let named = before.len() + after.len();
+    if named >= n {
+        return None;
+    }
+    let under = split_unit(&words);
+    let mut cols: Vec<Column> = before.iter().map(|w| split_unit(w)).collect();
+    let from = cols.len();
+    let to = n - after.len();
+    cols.extend((from..to).map(|i| Column {
+        name: format!("c{}", i + 1),
+        unit: under.unit.clone(),
+    }));
+    cols.extend(after.iter().map(|w| split_unit(w)));
+    let span = if to - from == 1 {
+        format!("column c{to}")
+    } else {
+        format!("columns c{}–c{to}", from + 1)
+    };
+    let note = if words.is_empty() {
+        format!("{span} sit under a rule in the header, not under names: generic names")
+    } else {
+        format!(
+            "{span} sit under the banner \"{words}\" in the header, not under names: generic names"
+        )
+    };
+    Some((cols, note))
 }
 
 #[cfg(test)]
@@ -188,6 +255,42 @@ mod tests {
         let names: Vec<_> = cols.iter().map(|c| c.name.as_str()).collect();
         assert_eq!(names, ["step", "time", "kinetic", "ext work"]);
         assert_eq!(cols[3].unit.as_deref(), Some("J"));
+    }
+
+    #[test]
+    fn banner_over_columns_gets_generic_names() {
+        // The header of a molecular-dynamics logger: four energies and a
+        // temperature, then six stress components under one banner.
+        let head = "Time[ps]      Etot[eV]     Epot[eV]     Ekin[eV]    T[K]      \
+                    ---------------------- stress [GPa] -----------------------";
+        let (cols, note) = banner_columns(head, 11).unwrap_or_default();
+        let names: Vec<_> = cols.iter().map(|c| c.name.as_str()).collect();
+        assert_eq!(
+            names,
+            [
+                "Time", "Etot", "Epot", "Ekin", "T", "c6", "c7", "c8", "c9", "c10", "c11"
+            ]
+        );
+        assert_eq!(cols[4].unit.as_deref(), Some("K"));
+        assert_eq!(cols[7].unit.as_deref(), Some("GPa"));
+        assert!(
+            note.contains("c6–c11") && note.contains("stress [GPa]"),
+            "{note}"
+        );
+        // Names after the banner keep their places.
+        let (cols, _) = banner_columns("t ==== forces ==== ke", 5).unwrap_or_default();
+        let names: Vec<_> = cols.iter().map(|c| c.name.as_str()).collect();
+        assert_eq!(names, ["t", "c2", "c3", "c4", "ke"]);
+        assert!(banner_columns("t ke ie", 3).is_none());
+        assert!(banner_columns("a b ---- x ----", 2).is_none());
+    }
+
+    #[test]
+    fn names_are_cleaned_before_units_are_split() {
+        let c = split_unit("\u{1b}]0;title\u{7}Time [s]");
+        assert_eq!((c.name.as_str(), c.unit.as_deref()), ("Time", Some("s")));
+        let c = split_unit("disp\u{1b}[2J (mm)");
+        assert_eq!((c.name.as_str(), c.unit.as_deref()), ("disp", Some("mm")));
     }
 
     #[test]

@@ -3,13 +3,20 @@
 //! log lines through a user regex. It is fed byte slices and never does I/O; it
 //! reports rows, schemas, restarts (segments) and skipped lines to a [`RowSink`].
 
+mod current;
+pub mod declare;
 pub mod delimited;
 pub mod header;
+pub mod infer;
 pub mod jsonl;
 pub mod number;
 pub mod pattern;
 pub mod reader;
 pub mod roles;
+mod table;
+mod unicode;
+pub mod vocab;
+pub mod xml;
 
 pub use reader::Reader;
 
@@ -64,10 +71,74 @@ pub struct Column {
     pub unit: Option<String>,
 }
 
-/// The columns of the segment being read.
-#[derive(Debug, Clone, Default, PartialEq, Eq)]
+/// Where the names of a schema's columns came from.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
+pub enum NamesFrom {
+    /// No names: generic `c1..cN`.
+    #[default]
+    Generic,
+    /// The header line at this 1-based line.
+    HeaderLine(u64),
+    /// A comment line at this 1-based line (`# time ke ie`).
+    CommentLine(u64),
+    /// Column descriptions in the markup of a recorder wrapped in XML, on these lines.
+    Markup { first: u64, last: u64 },
+    /// The keys of the first JSON object, at this line.
+    JsonKeys(u64),
+    /// The named groups of the user's pattern.
+    Pattern,
+}
+
+impl std::fmt::Display for NamesFrom {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            NamesFrom::Generic => f.write_str("no header: generic names c1..cN"),
+            NamesFrom::HeaderLine(l) => write!(f, "header at line {l}"),
+            NamesFrom::CommentLine(l) => write!(f, "header in the comment at line {l}"),
+            NamesFrom::Markup { first, last } => {
+                write!(f, "column descriptions in the markup, lines {first}–{last}")
+            }
+            NamesFrom::JsonKeys(l) => write!(f, "keys of the JSON object at line {l}"),
+            NamesFrom::Pattern => f.write_str("named groups of the pattern"),
+        }
+    }
+}
+
+/// A role the reader inferred for a column from its values (a headerless file)
+/// or from the markup that describes it; `--role` overrides it.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Inferred {
+    /// 0-based column index.
+    pub column: usize,
+    pub role: roles::Role,
+    /// One sentence: why.
+    pub reason: String,
+}
+
+/// The columns of the segment being read, and what the reader knows about them.
+#[derive(Debug, Clone, Default, PartialEq)]
 pub struct Schema {
     pub columns: Vec<Column>,
+    /// Where the names came from.
+    pub names_from: NamesFrom,
+    /// Roles inferred from values or markup (name matching comes after them,
+    /// the user's `--role` before them).
+    pub inferred: Vec<Inferred>,
+    /// What else the reader inferred or noticed, one sentence each (output
+    /// stride, step size from time differences, a banner over some columns).
+    pub notes: Vec<String>,
+    /// Declarations read from text lines of the file, the latest of each kind.
+    pub declared: Declared,
+}
+
+/// What the file itself declares in comment or banner lines.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct Declared {
+    /// `# scheme: central difference` → the scheme text as written, and its line.
+    pub scheme: Option<(u64, String)>,
+    /// A step size given in a text line outside the table (`timestep 0.005`,
+    /// `Time step : 0.005`, `dt = 1e-3`), and its line.
+    pub step_size: Option<(u64, f64)>,
 }
 
 /// Why a new segment (a restart) began.
@@ -95,6 +166,11 @@ pub enum SkipReason {
     /// The header names a different number of columns than the first row has; the
     /// columns were renamed to fit the rows (a note; the row is read).
     HeaderMismatch { names: usize, fields: usize },
+    /// A block of text lines outside any table: a banner, an echoed input deck,
+    /// run statistics (a note; not counted as skipped rows).
+    OutsideTable { first: u64, last: u64, lines: u64 },
+    /// What the byte-order mark said about the encoding (a note).
+    Encoding(&'static str),
     /// Anything else, explained.
     Other(String),
 }
@@ -104,7 +180,10 @@ impl SkipReason {
     pub fn is_note(&self) -> bool {
         matches!(
             self,
-            SkipReason::NonUtf8Header | SkipReason::HeaderMismatch { .. }
+            SkipReason::NonUtf8Header
+                | SkipReason::HeaderMismatch { .. }
+                | SkipReason::OutsideTable { .. }
+                | SkipReason::Encoding(_)
         )
     }
 }
@@ -122,6 +201,13 @@ impl std::fmt::Display for SkipReason {
                 f,
                 "header names {names} columns but rows have {fields}; unnamed ones are c1..cN"
             ),
+            SkipReason::OutsideTable { first, last, lines } => {
+                write!(
+                    f,
+                    "text lines outside the table ({lines}), lines {first}–{last}"
+                )
+            }
+            SkipReason::Encoding(s) => f.write_str(s),
             SkipReason::Other(s) => f.write_str(s),
         }
     }

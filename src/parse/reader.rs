@@ -1,20 +1,26 @@
-//! The streaming reader: cuts fed bytes into physical lines (holding back a
-//! partial last line, dropping NUL bytes, skipping over-long lines), decides the
-//! format once, reads headers and rows, and reports restarts (a new header after
-//! data, time going backwards, truncation). Fed byte slices; never does I/O.
+//! The streaming reader: decodes a byte-order mark, cuts fed bytes into physical
+//! lines (holding back a partial last line, dropping NUL bytes, skipping
+//! over-long lines), reads comment lines (a header hidden there, a declared
+//! scheme or step size), decides the layout once, and hands each line to it:
+//! delimited text (`table.rs`), an XML recorder (`xml.rs`), JSON Lines or the
+//! user's pattern. Fed byte slices; never does I/O.
 
 use memchr::memchr;
 
-use super::delimited::{self, LineKind, RowError};
-use super::roles::{self, Role, RoleRules};
-use super::{Column, Delimiter, Format, ParseOptions, RowSink, Schema, SegmentReason, SkipReason};
-use super::{header, jsonl, number::trim, pattern};
+use super::current::Current;
+use super::roles::RoleRules;
+use super::table::{Line, Table};
+use super::unicode::{Encoding, Sniffed};
+use super::xml::Xml;
+use super::{Format, NamesFrom, ParseOptions, RowSink, Schema, SegmentReason, SkipReason};
+use super::{declare, header, jsonl, number::trim, pattern};
 
 /// The layout in use once decided.
 #[derive(Debug, Clone)]
 enum Mode {
     Undecided,
-    Delimited(Option<Delimiter>),
+    Delimited,
+    Xml,
     Json,
     Pattern(regex::bytes::Regex),
 }
@@ -25,47 +31,41 @@ pub struct Reader {
     opts: ParseOptions,
     rules: RoleRules,
     mode: Mode,
+    encoding: Encoding,
+    /// Reused buffer for decoded UTF-16 input.
+    decoded: Vec<u8>,
     /// Bytes of an incomplete line.
     carry: Vec<u8>,
     /// Set while skipping an over-long line: bytes seen so far.
     discarding: Option<usize>,
     /// Complete physical lines consumed so far.
     line: u64,
-    schema: Option<Schema>,
+    cur: Current,
+    table: Table,
+    xml: Xml,
     /// JSON Lines: column names of the schema.
     names: Vec<String>,
-    /// Text of the last comment line before the first schema (a header may hide there).
-    last_comment: Option<Vec<u8>>,
-    /// Text of the header in force, kept until the first row to align names.
-    header_text: Option<String>,
-    time_col: Option<usize>,
-    last_time: Option<f64>,
-    rows_in_segment: u64,
     values: Vec<f64>,
-    scratch: Vec<f64>,
     clean: Vec<u8>,
 }
 
 impl Reader {
     /// A reader with these options; `rules` tells which column is time (for restarts).
     pub fn new(opts: &ParseOptions, rules: &RoleRules) -> Self {
-        let mode = initial_mode(&opts.format);
         Self {
             opts: opts.clone(),
             rules: rules.clone(),
-            mode,
+            mode: initial_mode(&opts.format),
+            encoding: Encoding::start(),
+            decoded: Vec::new(),
             carry: Vec::new(),
             discarding: None,
             line: 0,
-            schema: None,
+            cur: Current::new(rules),
+            table: Table::new(forced_delimiter(&opts.format)),
+            xml: Xml::default(),
             names: Vec::new(),
-            last_comment: None,
-            header_text: None,
-            time_col: None,
-            last_time: None,
-            rows_in_segment: 0,
             values: Vec::new(),
-            scratch: Vec::new(),
             clean: Vec::new(),
         }
     }
@@ -77,11 +77,58 @@ impl Reader {
 
     /// The schema in force, if a header or first row has been read.
     pub fn schema(&self) -> Option<&Schema> {
-        self.schema.as_ref()
+        self.cur.schema.as_ref()
     }
 
     /// Feed the next bytes. Only complete lines are read; the rest waits.
     pub fn feed(&mut self, bytes: &[u8], sink: &mut dyn RowSink) {
+        match &self.encoding {
+            Encoding::Bytes => self.feed_text(bytes, sink),
+            Encoding::Sniffing(_) => self.sniff(bytes, false, sink),
+            _ => {
+                let mut buf = std::mem::take(&mut self.decoded);
+                buf.clear();
+                self.encoding.decode(bytes, &mut buf);
+                self.feed_text(&buf, sink);
+                self.decoded = buf;
+            }
+        }
+    }
+
+    /// End of input: a last line without a newline is read as a line, and what
+    /// was held back to decide (a headerless table's first rows, text after a
+    /// table) is settled.
+    pub fn finish(&mut self, sink: &mut dyn RowSink) {
+        if matches!(self.encoding, Encoding::Sniffing(_)) {
+            self.sniff(&[], true, sink);
+        }
+        if !self.carry.is_empty() || self.discarding.is_some() {
+            self.end_held_line(sink);
+        }
+        if matches!(self.mode, Mode::Delimited) {
+            self.table.finish(&mut self.cur, sink);
+        }
+    }
+
+    /// The file was truncated or replaced: drop the partial line and what was
+    /// held back, forget the schema and the detected layout, and start counting
+    /// lines from 1 again.
+    pub fn restart(&mut self, sink: &mut dyn RowSink) {
+        let (opts, rules) = (self.opts.clone(), self.rules.clone());
+        *self = Reader::new(&opts, &rules);
+        sink.segment(1, SegmentReason::Truncated);
+    }
+
+    fn sniff(&mut self, bytes: &[u8], end: bool, sink: &mut dyn RowSink) {
+        if let Sniffed::Decided { rest, note } = self.encoding.sniff(bytes, end) {
+            if let Some(note) = note {
+                sink.skipped(1, SkipReason::Encoding(note));
+            }
+            self.feed_text(&rest, sink);
+        }
+    }
+
+    fn feed_text(&mut self, bytes: &[u8], sink: &mut dyn RowSink) {
         let mut rest = bytes;
         if !self.carry.is_empty() || self.discarding.is_some() {
             match memchr(b'\n', rest) {
@@ -103,29 +150,6 @@ impl Reader {
             rest = &rest[i + 1..];
         }
         self.hold(rest);
-    }
-
-    /// End of input: a last line without a newline is read as a line.
-    pub fn finish(&mut self, sink: &mut dyn RowSink) {
-        if !self.carry.is_empty() || self.discarding.is_some() {
-            self.end_held_line(sink);
-        }
-    }
-
-    /// The file was truncated or replaced: drop the partial line, forget the
-    /// schema and the detected layout, and start counting lines from 1 again.
-    pub fn restart(&mut self, sink: &mut dyn RowSink) {
-        self.carry.clear();
-        self.discarding = None;
-        self.line = 0;
-        self.schema = None;
-        self.names.clear();
-        self.last_comment = None;
-        self.time_col = None;
-        self.last_time = None;
-        self.rows_in_segment = 0;
-        self.mode = initial_mode(&self.opts.format);
-        sink.segment(1, SegmentReason::Truncated);
     }
 
     fn hold(&mut self, part: &[u8]) {
@@ -188,170 +212,60 @@ impl Reader {
         let t = trim(line);
         let Some(&first) = t.first() else { return };
         if matches!(first, b'#' | b'%' | b'!') {
-            if self.schema.is_none() {
-                let body = t.iter().position(|b| !matches!(b, b'#' | b'%' | b'!'));
-                self.last_comment = Some(body.map_or(Vec::new(), |i| t[i..].to_vec()));
-            }
+            self.comment(t, sink);
             return;
         }
         if matches!(self.mode, Mode::Undecided) {
-            self.mode = if first == b'{' {
-                Mode::Json
-            } else {
-                Mode::Delimited(None)
+            self.mode = match first {
+                b'{' => Mode::Json,
+                b'<' => Mode::Xml,
+                _ => Mode::Delimited,
             };
         }
+        let no = self.line;
         match self.mode {
-            Mode::Json => self.json_line(t, sink),
-            Mode::Delimited(d) => {
-                let d = d.unwrap_or_else(|| {
-                    let g = delimited::guess_delimiter(t);
-                    self.mode = Mode::Delimited(Some(g));
-                    g
-                });
-                self.delimited_line(line, t, d, sink);
-            }
-            _ => {}
-        }
-    }
-
-    /// One line of delimited text: `raw` as in the file, `t` trimmed.
-    fn delimited_line(&mut self, raw: &[u8], t: &[u8], d: Delimiter, sink: &mut dyn RowSink) {
-        let err = match delimited::parse_row(t, d, &mut self.values) {
-            Ok(()) => {
-                let values = std::mem::take(&mut self.values);
-                self.data_row(raw, &values, d, sink);
-                self.values = values;
-                return;
-            }
-            Err(RowError::NotANumber(i)) => i,
-        };
-        match delimited::classify(t, d, &mut self.scratch) {
-            LineKind::Header => {
-                let (text, latin1) = header::decode(t);
-                let cols = header::columns(&text, d);
-                let plausible = match &self.schema {
-                    None => true,
-                    Some(s) => plausible_new_header(&s.columns, &cols),
+            Mode::Delimited => {
+                let l = Line {
+                    no,
+                    raw: line,
+                    text: t,
                 };
-                if !plausible {
-                    sink.skipped(self.line, SkipReason::NotANumber { field: err });
-                    return;
-                }
-                if latin1 {
-                    sink.skipped(self.line, SkipReason::NonUtf8Header);
-                }
-                if self.schema.is_some() && self.rows_in_segment > 0 {
-                    sink.segment(self.line, SegmentReason::NewHeader);
-                }
-                self.set_schema(Schema { columns: cols }, sink);
-                self.header_text = (d == Delimiter::Whitespace).then(|| header::decode(raw).0);
+                self.table.line(&l, &mut self.values, &mut self.cur, sink);
             }
-            LineKind::Mixed | LineKind::Data => {
-                if self.schema.is_none() && self.opts_delimiter().is_none() {
-                    // Text before the header or the first row: guess again later.
-                    self.mode = Mode::Delimited(None);
-                }
-                sink.skipped(self.line, SkipReason::NotANumber { field: err });
-            }
-        }
-    }
-
-    fn opts_delimiter(&self) -> Option<Delimiter> {
-        match self.opts.format {
-            Format::Delimited(d) => Some(d),
-            _ => None,
-        }
-    }
-
-    fn data_row(&mut self, line: &[u8], values: &[f64], d: Delimiter, sink: &mut dyn RowSink) {
-        let n = values.len();
-        let header_text = self.header_text.take();
-        match &self.schema {
-            None => {
-                let cols = self
-                    .comment_header(d, n)
-                    .unwrap_or_else(|| generic_columns(0, n));
-                self.set_schema(Schema { columns: cols }, sink);
-            }
-            Some(s)
-                if s.columns.len() > n && self.rows_in_segment == 0 && header_text.is_some() =>
-            {
-                // Names with spaces in a whitespace-separated header: align by position.
-                let aligned = header_text
-                    .as_deref()
-                    .and_then(|t| header::align_whitespace(t, line))
-                    .filter(|c| c.len() == n);
-                match aligned {
-                    Some(cols) => self.set_schema(Schema { columns: cols }, sink),
-                    None => self.rename_to_fit(n, sink),
-                }
-            }
-            Some(s) if s.columns.len() != n && self.rows_in_segment == 0 => {
-                self.rename_to_fit(n, sink);
-            }
+            Mode::Xml => self.xml.line(no, t, &mut self.values, &mut self.cur, sink),
+            Mode::Json => self.json_line(t, sink),
             _ => {}
         }
-        self.emit_row(values, sink);
     }
 
-    /// The header and the rows disagree: keep the names that exist, number the
-    /// rest, and say so once.
-    fn rename_to_fit(&mut self, n: usize, sink: &mut dyn RowSink) {
-        let Some(s) = self.schema.as_ref() else {
-            return;
-        };
-        let names = s.columns.len();
-        let mut cols: Vec<Column> = s.columns.iter().take(n).cloned().collect();
-        cols.extend(generic_columns(cols.len(), n));
-        sink.skipped(self.line, SkipReason::HeaderMismatch { names, fields: n });
-        self.set_schema(Schema { columns: cols }, sink);
-    }
-
-    fn emit_row(&mut self, values: &[f64], sink: &mut dyn RowSink) {
-        let expected = self.schema.as_ref().map_or(0, |s| s.columns.len());
-        if values.len() != expected {
-            sink.skipped(
-                self.line,
-                SkipReason::FieldCount {
-                    expected,
-                    found: values.len(),
-                },
-            );
-            return;
+    /// A comment line: a scheme or step size it declares, and (for delimited
+    /// text) a header it may hold.
+    fn comment(&mut self, t: &[u8], sink: &mut dyn RowSink) {
+        let at = t
+            .iter()
+            .position(|b| !matches!(b, b'#' | b'%' | b'!'))
+            .unwrap_or(t.len());
+        let body = trim(&t[at..]);
+        let (text, _) = header::decode(body);
+        let mut declared = false;
+        if let Some(scheme) = declare::scheme(&text) {
+            self.cur.declared.scheme = Some((self.line, scheme.to_owned()));
+            declared = true;
         }
-        if let Some(tc) = self.time_col {
-            let t = values[tc];
-            if t.is_finite() {
-                if let Some(prev) = self.last_time
-                    && t < prev
-                    && self.rows_in_segment > 0
-                {
-                    sink.segment(self.line, SegmentReason::TimeBackwards);
-                    self.rows_in_segment = 0;
-                }
-                self.last_time = Some(t);
-            }
+        if let Some(dt) = declare::step_size(&text) {
+            self.cur.declared.step_size = Some((self.line, dt));
+            declared = true;
         }
-        self.rows_in_segment += 1;
-        sink.row(self.line, values);
-    }
-
-    fn comment_header(&mut self, d: Delimiter, n: usize) -> Option<Vec<Column>> {
-        let text = self.last_comment.take()?;
-        if delimited::classify(&text, d, &mut self.scratch) != LineKind::Header {
-            return None;
+        if declared
+            && self.cur.rows_in_segment == 0
+            && let Some(schema) = self.cur.schema.take()
+        {
+            // No row read under this schema yet: it takes the declaration now.
+            self.cur.set_schema(self.line, schema, sink);
         }
-        let cols = header::columns(&header::decode(&text).0, d);
-        (cols.len() == n).then_some(cols)
-    }
-
-    fn set_schema(&mut self, schema: Schema, sink: &mut dyn RowSink) {
-        self.time_col = roles::assign(&schema, &self.rules).find(Role::Time);
-        self.last_time = None;
-        self.rows_in_segment = 0;
-        sink.schema(self.line, &schema);
-        self.schema = Some(schema);
+        if matches!(self.mode, Mode::Undecided | Mode::Delimited) {
+            self.table.comment(self.line, body);
+        }
     }
 
     fn json_line(&mut self, t: &[u8], sink: &mut dyn RowSink) {
@@ -362,7 +276,7 @@ impl Reader {
                 return;
             }
         };
-        if self.schema.is_none() {
+        if self.cur.schema.is_none() {
             if fields.is_empty() {
                 sink.skipped(
                     self.line,
@@ -371,12 +285,16 @@ impl Reader {
                 return;
             }
             self.names = fields.iter().map(|(k, _)| k.clone()).collect();
-            let cols = self.names.iter().map(|k| header::split_unit(k)).collect();
-            self.set_schema(Schema { columns: cols }, sink);
+            let schema = Schema {
+                columns: self.names.iter().map(|k| header::split_unit(k)).collect(),
+                names_from: NamesFrom::JsonKeys(self.line),
+                ..Schema::default()
+            };
+            self.cur.set_schema(self.line, schema, sink);
         }
         let mut values = std::mem::take(&mut self.values);
         match jsonl::values_for(&self.names, &fields, &mut values) {
-            Ok(()) => self.emit_row(&values, sink),
+            Ok(()) => self.cur.emit_row(self.line, &values, sink),
             Err(name) => sink.skipped(
                 self.line,
                 SkipReason::Other(format!("field \"{name}\" is missing")),
@@ -391,55 +309,33 @@ impl Reader {
             pattern::Match::NoMatch => {}
             pattern::Match::Bad(field) => sink.skipped(self.line, SkipReason::NotANumber { field }),
             pattern::Match::Row => {
-                if self.schema.is_none() {
-                    self.set_schema(
-                        Schema {
-                            columns: pattern::columns(re),
-                        },
-                        sink,
-                    );
+                if self.cur.schema.is_none() {
+                    let schema = Schema {
+                        columns: pattern::columns(re),
+                        names_from: NamesFrom::Pattern,
+                        ..Schema::default()
+                    };
+                    self.cur.set_schema(self.line, schema, sink);
                 }
-                self.emit_row(&values, sink);
+                self.cur.emit_row(self.line, &values, sink);
             }
         }
         self.values = values;
     }
 }
 
-/// A line of words after data rows is taken for a new header only when it looks
-/// like one: at least half of its names shared with the current header, or, when
-/// the columns had no names yet, as many names as there are columns. Otherwise (a
-/// log message such as "restarting from checkpoint") it is skipped, and the
-/// column names stay.
-fn plausible_new_header(current: &[Column], new: &[Column]) -> bool {
-    let unnamed = current
-        .iter()
-        .enumerate()
-        .all(|(i, c)| c.name == format!("c{}", i + 1));
-    if unnamed {
-        return new.len() == current.len();
-    }
-    let norm = |c: &Column| roles::normalize(&c.name);
-    let known: Vec<String> = current.iter().map(norm).collect();
-    let shared = new.iter().filter(|c| known.contains(&norm(c))).count();
-    new.len() >= 2 && 2 * shared >= new.len()
-}
-
 fn initial_mode(format: &Format) -> Mode {
     match format {
         Format::Auto => Mode::Undecided,
-        Format::Delimited(d) => Mode::Delimited(Some(*d)),
+        Format::Delimited(_) => Mode::Delimited,
         Format::JsonLines => Mode::Json,
         Format::Pattern(re) => Mode::Pattern(re.clone()),
     }
 }
 
-/// Columns `c{from+1}..c{to}` for a file without (enough) header names.
-fn generic_columns(from: usize, to: usize) -> Vec<Column> {
-    (from..to)
-        .map(|i| Column {
-            name: format!("c{}", i + 1),
-            unit: None,
-        })
-        .collect()
+fn forced_delimiter(format: &Format) -> Option<super::Delimiter> {
+    match format {
+        Format::Delimited(d) => Some(*d),
+        _ => None,
+    }
 }

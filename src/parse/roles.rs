@@ -1,5 +1,9 @@
-//! Column roles, detected by name: time, step size, step number, energy terms,
-//! implicit-solver diagnostics; every other numeric column is a probe.
+//! Column roles: time, step size, step number, energy terms, implicit-solver
+//! diagnostics; every other numeric column is a probe. A role comes from the
+//! user's override, else from what the reader inferred (values, markup), else
+//! from the column's name (`vocab.rs`).
+
+pub use super::vocab::{detect, normalize};
 
 /// An energy term of the balance.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
@@ -127,272 +131,15 @@ impl RoleRules {
     }
 }
 
-/// Lower-case words of a column name: units are already split off; `_`, `-`,
-/// `.`, `/` and spaces separate words.
-pub fn normalize(name: &str) -> String {
-    let mut out = String::with_capacity(name.len());
-    for ch in name.chars() {
-        if ch.is_alphanumeric() {
-            out.extend(ch.to_lowercase());
-        } else if !out.is_empty() && !out.ends_with(' ') {
-            out.push(' ');
-        }
-    }
-    out.trim_end().to_owned()
-}
-
-/// Name lists in the trade's plain words, tried in order (the first that
-/// matches wins). A phrase matches when the name equals it, or equals it with the
-/// spaces removed (`timestep`); a phrase of several words also matches a name that
-/// holds all of them as whole words (`total kinetic energy`).
-const RULES: &[(Role, &[&str])] = &[
-    (
-        Role::Probe,
-        &[
-            "wall time",
-            "wall clock",
-            "cpu time",
-            "elapsed",
-            "elapsed time",
-            "walltime",
-            "cputime",
-            "clock time",
-            "run time",
-        ],
-    ),
-    (
-        Role::StepSize,
-        &[
-            "dt",
-            "delta t",
-            "time step",
-            "step size",
-            "time increment",
-            "increment size",
-            "stable step",
-        ],
-    ),
-    (
-        Role::Cutbacks,
-        &[
-            "cutback",
-            "cutbacks",
-            "bisections",
-            "step reductions",
-            "halvings",
-        ],
-    ),
-    (
-        Role::Iterations,
-        &[
-            "iterations",
-            "iters",
-            "iter",
-            "its",
-            "newton iterations",
-            "nonlinear iterations",
-            "equilibrium iterations",
-        ],
-    ),
-    (
-        Role::Residual,
-        &[
-            "residual",
-            "residual norm",
-            "res",
-            "rnorm",
-            "norm of residual",
-            "force residual",
-        ],
-    ),
-    (
-        Role::StepNumber,
-        &[
-            "step",
-            "steps",
-            "step number",
-            "step no",
-            "step nr",
-            "nstep",
-            "cycle",
-            "cycles",
-            "cycle number",
-            "increment",
-            "inc",
-            "n",
-        ],
-    ),
-    (
-        Role::Energy(EnergyTerm::Artificial),
-        &[
-            "hourglass",
-            "hourglass energy",
-            "contact energy",
-            "penalty energy",
-            "sliding energy",
-            "interface energy",
-            "added mass",
-            "mass scaling",
-            "artificial",
-            "artificial energy",
-            "stabilization energy",
-            "stabilisation energy",
-            "spurious energy",
-        ],
-    ),
-    (
-        Role::Energy(EnergyTerm::Dissipated),
-        &[
-            "damping energy",
-            "dissipated",
-            "dissipated energy",
-            "dissipation",
-            "energy dissipated",
-            "friction energy",
-            "frictional energy",
-            "plastic work",
-            "plastic energy",
-            "plastic dissipation",
-            "viscous energy",
-            "viscous dissipation",
-            "losses",
-            "energy loss",
-        ],
-    ),
-    (
-        Role::Energy(EnergyTerm::Kinetic),
-        &["kinetic", "kinetic energy", "ke", "ekin", "e kin"],
-    ),
-    (
-        Role::Energy(EnergyTerm::Internal),
-        &[
-            "internal",
-            "internal energy",
-            "strain energy",
-            "ie",
-            "eint",
-            "e int",
-            "elastic energy",
-            "potential energy",
-        ],
-    ),
-    (
-        Role::Energy(EnergyTerm::ExternalWork),
-        &[
-            "external work",
-            "ext work",
-            "external",
-            "work",
-            "w ext",
-            "wext",
-            "applied work",
-            "work done",
-            "external energy",
-        ],
-    ),
-    (
-        Role::Energy(EnergyTerm::Total),
-        &[
-            "total energy",
-            "total",
-            "etot",
-            "e tot",
-            "energy",
-            "energy total",
-        ],
-    ),
-    (
-        Role::Time,
-        &[
-            "time",
-            "t",
-            "sim time",
-            "simulation time",
-            "simulated time",
-            "physical time",
-            "solution time",
-            "model time",
-            "analysis time",
-        ],
-    ),
-];
-
-/// Role of one column name, with the reason.
-pub fn detect(name: &str) -> (Role, String) {
-    let norm = normalize(name);
-    let compact: String = norm.chars().filter(|c| *c != ' ').collect();
-    let words: Vec<&str> = norm.split(' ').collect();
-    for (role, phrases) in RULES {
-        for phrase in *phrases {
-            let phrase_compact: String = phrase.chars().filter(|c| *c != ' ').collect();
-            let exact = norm == *phrase || compact == phrase_compact;
-            let contained = phrase.contains(' ') && phrase.split(' ').all(|w| words.contains(&w));
-            if exact || contained {
-                let why = if *role == Role::Probe {
-                    format!("matched \"{phrase}\": wall-clock, not simulated, so a probe")
-                } else {
-                    format!("matched \"{phrase}\"")
-                };
-                return (*role, why);
-            }
-        }
-    }
-    if let Some((term, stem)) = energy_abbreviation(&words) {
-        return (
-            Role::Energy(term),
-            format!("energy abbreviation \"{stem}\""),
-        );
-    }
-    (
-        Role::Probe,
-        "no role word; any other numeric column is a probe".to_owned(),
-    )
-}
-
-/// Word stems of the energy terms, for short names such as `E_damp` or `Ehg`
-/// (first match wins, so `interf` comes before `int`).
-const ENERGY_STEMS: &[(&str, EnergyTerm)] = &[
-    ("kin", EnergyTerm::Kinetic),
-    ("interf", EnergyTerm::Artificial),
-    ("int", EnergyTerm::Internal),
-    ("strain", EnergyTerm::Internal),
-    ("elast", EnergyTerm::Internal),
-    ("pot", EnergyTerm::Internal),
-    ("ext", EnergyTerm::ExternalWork),
-    ("damp", EnergyTerm::Dissipated),
-    ("diss", EnergyTerm::Dissipated),
-    ("fric", EnergyTerm::Dissipated),
-    ("plast", EnergyTerm::Dissipated),
-    ("visc", EnergyTerm::Dissipated),
-    ("hg", EnergyTerm::Artificial),
-    ("hour", EnergyTerm::Artificial),
-    ("cont", EnergyTerm::Artificial),
-    ("pen", EnergyTerm::Artificial),
-    ("art", EnergyTerm::Artificial),
-    ("stab", EnergyTerm::Artificial),
-    ("tot", EnergyTerm::Total),
-];
-
-/// `E damp`, `damp energy`, `Edamp`, `W ext`: an energy letter or word with a
-/// term's stem.
-fn energy_abbreviation<'a>(words: &[&'a str]) -> Option<(EnergyTerm, &'a str)> {
-    let stem = match *words {
-        ["e" | "en" | "energy", s] | [s, "e" | "energy"] => s,
-        ["w", s] if s.starts_with("ext") => s,
-        [w] if w.len() >= 4 && w.starts_with('e') => &w[1..],
-        _ => return None,
-    };
-    ENERGY_STEMS
-        .iter()
-        .find(|(p, _)| stem.starts_with(p))
-        .map(|(_, t)| (*t, stem))
-}
-
-/// Assign a role to every column of `schema`: overrides first, then name matching.
-/// Only the first column matched by name to time, step size or step number gets
-/// that role; later ones become probes.
+/// Assign a role to every column of `schema`: overrides first, then what the
+/// reader inferred, then name matching. Only the first column matched by name to
+/// time, step size or step number gets that role; later ones become probes. Among
+/// named energy columns, parts of the potential energy (`E_pair`, `E_mol`) give
+/// way to a column that holds all of it (`PotEng`), and a second total to the
+/// first (or to a conserved total), so that nothing is counted twice.
 pub fn assign(schema: &crate::parse::Schema, rules: &RoleRules) -> RoleMap {
     let mut map = RoleMap::default();
+    let mut by_name = Vec::new();
     for col in &schema.columns {
         let norm = normalize(&col.name);
         let over = rules
@@ -401,24 +148,75 @@ pub fn assign(schema: &crate::parse::Schema, rules: &RoleRules) -> RoleMap {
             .rev()
             .find(|(n, _)| normalize(n) == norm)
             .map(|(_, r)| *r);
-        let (mut role, mut why) = match over {
-            Some(r) => (r, "set by configuration".to_owned()),
-            None => detect(&col.name),
+        let inferred = schema.inferred.iter().find(|x| x.column == map.roles.len());
+        let (mut role, mut why) = match (over, inferred) {
+            (Some(r), _) => (r, "set by configuration".to_owned()),
+            (None, Some(x)) => (x.role, x.reason.clone()),
+            (None, None) => detect(&col.name, col.unit.as_deref()),
         };
+        by_name.push(over.is_none() && inferred.is_none());
         let single = matches!(role, Role::Time | Role::StepSize | Role::StepNumber);
         if single && over.is_none() && map.roles.contains(&role) {
             why = format!("{why}, but an earlier column already has this role: probe");
             role = Role::Probe;
         }
-        let sign = match role {
-            Role::Energy(term) => rules.sign(term),
-            _ => 1.0,
-        };
         map.roles.push(role);
         map.reasons.push(why);
-        map.signs.push(sign);
     }
+    no_double_counting(schema, &by_name, &mut map);
+    map.signs = map
+        .roles
+        .iter()
+        .map(|r| match r {
+            Role::Energy(term) => rules.sign(*term),
+            _ => 1.0,
+        })
+        .collect();
     map
+}
+
+/// See [`assign`]: parts of the potential energy and extra totals become probes.
+fn no_double_counting(schema: &crate::parse::Schema, by_name: &[bool], map: &mut RoleMap) {
+    let name = |i: usize| schema.columns[i].name.as_str();
+    let roles = map.roles.clone();
+    let named = |i: usize, t: EnergyTerm| by_name[i] && roles[i] == Role::Energy(t);
+    let n = roles.len();
+    let internal: Vec<usize> = (0..n).filter(|&i| named(i, EnergyTerm::Internal)).collect();
+    let whole = internal
+        .iter()
+        .copied()
+        .find(|&i| !super::vocab::is_energy_part(name(i)));
+    if let Some(w) = whole {
+        for &i in internal
+            .iter()
+            .filter(|&&i| super::vocab::is_energy_part(name(i)))
+        {
+            map.roles[i] = Role::Probe;
+            map.reasons[i] = format!(
+                "a part of the potential energy, which \"{}\" holds whole: a probe",
+                name(w)
+            );
+        }
+    }
+    let totals: Vec<usize> = (0..n).filter(|&i| named(i, EnergyTerm::Total)).collect();
+    let keep = totals
+        .iter()
+        .copied()
+        .find(|&i| {
+            super::vocab::tokens(name(i))
+                .iter()
+                .any(|t| t.contains("conserv"))
+        })
+        .or(totals.first().copied());
+    if let Some(k) = keep {
+        for &i in totals.iter().filter(|&&i| i != k) {
+            map.roles[i] = Role::Probe;
+            map.reasons[i] = format!(
+                "another total energy; the balance uses \"{}\": a probe",
+                name(k)
+            );
+        }
+    }
 }
 
 #[cfg(test)]
@@ -428,7 +226,8 @@ mod tests {
     use crate::parse::header::split_unit;
 
     fn role(name: &str) -> Role {
-        detect(&split_unit(name).name).0
+        let c = split_unit(name);
+        detect(&c.name, c.unit.as_deref()).0
     }
 
     #[test]
@@ -472,6 +271,115 @@ mod tests {
         );
     }
 
+    /// Energy columns as structural, multibody and particle codes name them
+    /// (issue 13, failure class 1), each beside a healthy name of another code
+    /// that must stay a probe.
+    #[test]
+    fn energy_vocabulary_and_what_it_must_not_capture() {
+        use EnergyTerm::*;
+        let energy = [
+            ("damping", Dissipated),
+            ("DAMP", Dissipated),
+            ("D_damp", Dissipated),
+            ("damping_dissipation", Dissipated),
+            ("contact_dissipation", Dissipated),
+            ("Ecouple", Dissipated),
+            ("thermostat work", Dissipated),
+            ("strain", Internal),
+            ("potential", Internal),
+            ("PE", Internal),
+            ("SE", Internal),
+            ("W_int", Internal),
+            ("Elastic", Internal),
+            ("KinEng", Kinetic),
+            ("Ekin", Kinetic),
+            ("EKin", Kinetic),
+            ("KE", Kinetic),
+            ("Ekin_1", Kinetic),
+            ("PotEng", Internal),
+            ("Epot[eV]", Internal),
+            ("E_pair", Internal),
+            ("E_mol", Internal),
+            ("TotEng", Total),
+            ("Etot[eV]", Total),
+            ("Econserve", Total),
+            ("contact energy", Artificial),
+            ("E_contact", Artificial),
+            ("hourglass_dissipation", Artificial),
+        ];
+        for (name, term) in energy {
+            assert_eq!(role(name), Role::Energy(term), "{name}");
+        }
+        let probes = [
+            "contact_force",
+            "step_time",
+            "potential_drop",
+            "electric potential",
+            "damping_ratio",
+            "damping coefficient",
+            "strain_rate",
+            "strain_1",
+            "plastic strain",
+            "kinematic viscosity",
+            "viscosity",
+            "friction coefficient",
+            "total mass",
+            "external force",
+            "pair",
+            "Temp",
+            "T[K]",
+            "T (degC)",
+            "thermostat temperature",
+            "Press",
+            "Volume",
+            "CPU",
+            "kin_visc",
+        ];
+        for name in probes {
+            assert_eq!(role(name), Role::Probe, "{name}");
+        }
+        assert_eq!(role("Time[ps]"), Role::Time);
+        assert_eq!(role("Step"), Role::StepNumber);
+    }
+
+    #[test]
+    fn parts_and_second_totals_are_not_counted_twice() {
+        let schema = Schema {
+            columns: [
+                "Step",
+                "Temp",
+                "E_pair",
+                "E_mol",
+                "TotEng",
+                "PotEng",
+                "Econserve",
+            ]
+            .iter()
+            .map(|n| split_unit(n))
+            .collect(),
+            ..Schema::default()
+        };
+        let map = assign(&schema, &RoleRules::default());
+        assert_eq!(map.roles[2], Role::Probe, "{}", map.reasons[2]);
+        assert_eq!(map.roles[3], Role::Probe);
+        assert_eq!(map.roles[5], Role::Energy(EnergyTerm::Internal));
+        assert_eq!(map.roles[4], Role::Probe, "{}", map.reasons[4]);
+        assert_eq!(map.roles[6], Role::Energy(EnergyTerm::Total));
+        // Without a whole potential energy, the parts are its terms.
+        let schema = Schema {
+            columns: ["Step", "Temp", "E_pair", "E_mol", "TotEng", "Press"]
+                .iter()
+                .map(|n| split_unit(n))
+                .collect(),
+            ..Schema::default()
+        };
+        let map = assign(&schema, &RoleRules::default());
+        assert_eq!(map.roles[2], Role::Energy(EnergyTerm::Internal));
+        assert_eq!(map.roles[3], Role::Energy(EnergyTerm::Internal));
+        assert_eq!(map.roles[4], Role::Energy(EnergyTerm::Total));
+        assert_eq!(map.roles[1], Role::Probe);
+    }
+
     #[test]
     fn overrides_and_signs() {
         let schema = Schema {
@@ -479,6 +387,7 @@ mod tests {
                 .iter()
                 .map(|n| split_unit(n))
                 .collect(),
+            ..Schema::default()
         };
         let rules = RoleRules {
             overrides: vec![("q".into(), Role::Energy(EnergyTerm::Dissipated))],

@@ -459,6 +459,7 @@ mod tests {
                     unit: u.map(str::to_string),
                 })
                 .collect(),
+            ..Schema::default()
         }
     }
 

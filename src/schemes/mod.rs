@@ -17,6 +17,7 @@ pub mod courant;
 pub mod fit;
 pub mod inverse;
 pub mod limit;
+pub mod names;
 pub mod spectrum;
 
 use std::fmt;

@@ -53,6 +53,7 @@ fn schema_item() -> Item {
                 unit: None,
             })
             .collect(),
+        ..Schema::default()
     };
     let roles = RoleMap {
         roles: vec![

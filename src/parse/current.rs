@@ -1,0 +1,77 @@
+//! The schema in force and the rows of its segment, shared by every layout:
+//! sets a schema (with the declarations read so far), emits rows, and starts a
+//! new segment when the time column goes backwards.
+
+use super::roles::{self, Role, RoleRules};
+use super::{Declared, RowSink, Schema, SegmentReason, SkipReason};
+
+/// See the module documentation.
+#[derive(Debug, Clone)]
+pub(super) struct Current {
+    rules: RoleRules,
+    pub schema: Option<Schema>,
+    time_col: Option<usize>,
+    last_time: Option<f64>,
+    pub rows_in_segment: u64,
+    /// Declarations read so far, attached to each schema set from now on.
+    pub declared: Declared,
+}
+
+impl Current {
+    pub fn new(rules: &RoleRules) -> Self {
+        Self {
+            rules: rules.clone(),
+            schema: None,
+            time_col: None,
+            last_time: None,
+            rows_in_segment: 0,
+            declared: Declared::default(),
+        }
+    }
+
+    /// Number of columns of the schema in force (0 before the first).
+    pub fn width(&self) -> usize {
+        self.schema.as_ref().map_or(0, |s| s.columns.len())
+    }
+
+    /// The schema in force applies from `line` on.
+    pub fn set_schema(&mut self, line: u64, mut schema: Schema, sink: &mut dyn RowSink) {
+        schema.declared = self.declared.clone();
+        self.time_col = roles::assign(&schema, &self.rules).find(Role::Time);
+        self.last_time = None;
+        self.rows_in_segment = 0;
+        sink.schema(line, &schema);
+        self.schema = Some(schema);
+    }
+
+    /// A row at `line`: skipped when its field count differs from the schema's;
+    /// a time earlier than the previous row's starts a new segment.
+    pub fn emit_row(&mut self, line: u64, values: &[f64], sink: &mut dyn RowSink) {
+        let expected = self.width();
+        if values.len() != expected {
+            sink.skipped(
+                line,
+                SkipReason::FieldCount {
+                    expected,
+                    found: values.len(),
+                },
+            );
+            return;
+        }
+        if let Some(tc) = self.time_col {
+            let t = values[tc];
+            if t.is_finite() {
+                if let Some(prev) = self.last_time
+                    && t < prev
+                    && self.rows_in_segment > 0
+                {
+                    sink.segment(line, SegmentReason::TimeBackwards);
+                    self.rows_in_segment = 0;
+                }
+                self.last_time = Some(t);
+            }
+        }
+        self.rows_in_segment += 1;
+        sink.row(line, values);
+    }
+}
