@@ -62,6 +62,7 @@ fn schema() -> Item {
                     unit: Some("J".into()),
                 })
                 .collect(),
+            ..Schema::default()
         },
         roles: RoleMap {
             roles: vec![
@@ -200,6 +201,7 @@ fn the_reported_reproduction_shows_its_row() {
                     unit: None,
                 },
             ],
+            ..Schema::default()
         },
         roles: RoleMap {
             roles: vec![Role::Time, Role::Probe],
