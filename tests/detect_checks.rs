@@ -438,4 +438,22 @@ fn collapsing_step_is_critical_and_a_recovering_dip_is_not() {
         .collect();
     let (alarms, _) = run(&schema, &roles, &dip);
     assert!(alarms.is_empty(), "{alarms:?}");
+    // An adaptive controller at a stiff contact: the step cut by 10^3.5 at
+    // once, held for 300 rows while it drifts down by a further 30 %, then
+    // grown back by 3 % a row. Not a collapse: it raises nothing.
+    let mut t = 0.0;
+    let mut dt = 1e-6;
+    let cut: Vec<Vec<f64>> = (0..1200)
+        .map(|n| {
+            dt = match n {
+                0..200 => 1e-6,
+                200..500 => 10f64.powf(-9.5) * (1.0 - 0.3 * f64::from(n - 200) / 300.0),
+                _ => (dt * 1.03).min(1e-6),
+            };
+            t += dt;
+            vec![t, dt]
+        })
+        .collect();
+    let (alarms, _) = run(&schema, &roles, &cut);
+    assert!(alarms.is_empty(), "{alarms:?}");
 }

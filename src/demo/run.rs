@@ -284,19 +284,28 @@ impl Run {
     fn next_dt(&mut self) -> f64 {
         match self.setup.step {
             StepRule::Fixed { dt_s } => dt_s,
-            StepRule::Adaptive { safety, dt_max_s } => {
+            StepRule::Adaptive {
+                safety,
+                dt_max_s,
+                max_growth,
+            } => {
                 // Look ahead along the velocity so a contact about to close is
                 // counted in the estimate, as solvers add penalty stiffness to it.
                 let w_now = self.omega_max();
                 let reach = self.dt_s.max(self.dt_taken_s) * 1.5;
                 let ahead = &self.state.u + &self.state.v * reach;
                 let w = w_now.max(self.omega_at(&ahead));
+                let cap = if self.dt_taken_s > 0.0 {
+                    dt_max_s.min(max_growth * self.dt_taken_s)
+                } else {
+                    dt_max_s
+                };
                 if w > 0.0 {
-                    (safety * 2.0 / w).min(dt_max_s)
+                    (safety * 2.0 / w).min(cap)
                 } else if w.is_nan() {
                     f64::NAN
                 } else {
-                    dt_max_s
+                    cap
                 }
             }
         }
@@ -356,7 +365,11 @@ impl Run {
         if ratio < self.summary.min_dt_ratio {
             self.summary.min_dt_ratio = ratio;
         }
-        if ratio < 0.1 && self.summary.collapse_line.is_none() {
+        // A cut that recovers is not a collapse: the stretch below a tenth
+        // starts again after every recovery.
+        if ratio >= 0.1 {
+            self.summary.collapse_line = None;
+        } else if self.summary.collapse_line.is_none() {
             self.summary.collapse_line = Some(line);
         }
         // Balance as the written columns show it (unrecorded terms are missing).

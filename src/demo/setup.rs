@@ -11,8 +11,14 @@ use super::model::Model;
 pub enum StepRule {
     /// A fixed step.
     Fixed { dt_s: f64 },
-    /// dt = safety·2/ω_max of the current tangent, recomputed every step, capped at `dt_max_s`.
-    Adaptive { safety: f64, dt_max_s: f64 },
+    /// dt = safety·2/ω_max of the current tangent, recomputed every step, capped at `dt_max_s`
+    /// and at `max_growth` times the step before (a controller that cuts at
+    /// once but lets the step grow back gradually; infinite for no limit).
+    Adaptive {
+        safety: f64,
+        dt_max_s: f64,
+        max_growth: f64,
+    },
 }
 
 /// What a probe samples.
@@ -99,7 +105,9 @@ pub struct Summary {
     pub rows: u64,
     /// First line at or after the step where ω_max·dt first exceeded the scheme's limit.
     pub unstable_line: Option<u64>,
-    /// First line where the step fell below a tenth of its first value.
+    /// First line of the stretch, lasting to the end of the run, where the
+    /// step stayed below a tenth of its first value (a cut that recovers is
+    /// not a collapse).
     pub collapse_line: Option<u64>,
     /// First line holding a non-finite or overflowed field.
     pub crash_line: Option<u64>,

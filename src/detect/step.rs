@@ -1,38 +1,62 @@
 //! Step-size detector. Explicit step sizes follow the smallest element
-//! (Δt ≤ L/c, Courant), so a step that falls by orders of magnitude while
+//! (Δt ≤ L/c, Courant), so a step that keeps falling, span after span, while
 //! simulated time stalls means elements are distorting towards inversion.
-//! A dip that recovers (contact, an adaptive controller) is normal. The
-//! signs of a struggling implicit solver are the solver detector's.
+//! A cut that holds or recovers is normal: an adaptive controller meeting a
+//! stiff contact cuts its step by three or four orders of magnitude at once,
+//! holds it for a few hundred rows and lets it grow back; such a cut raises
+//! nothing. What counts is a steady decline: the step lower in each of
+//! several consecutive blocks of rows, no single block carrying most of the
+//! fall, and no recovery. The signs of a struggling implicit solver are the
+//! solver detector's.
 
 use super::clock::Clock;
 use super::{Detector, Sample, Shared};
 use crate::finding::{Evidence, Finding, Level};
 use crate::parse::roles::{Role, RoleMap};
 
-/// Rows of recent history kept for trends.
-const TREND_ROWS: usize = 16;
-/// Step below this fraction of its running peak (two orders of magnitude): warning.
-const WARN_DROP: f64 = 1e-2;
-/// Step below this fraction of its running peak, and still falling: critical
-/// (three orders of magnitude: the run is grinding to a halt).
-const CRITICAL_DROP: f64 = 1e-3;
-/// "Still falling": the step is below this fraction of its value `TREND_ROWS` ago.
-const FALLING: f64 = 0.5;
-/// Rows over which a steady decline of the step is judged.
-const DECLINE_ROWS: usize = 64;
-/// "Still falling" within a decline: under this fraction of the step
-/// `TREND_ROWS` earlier (and at mid-span, of the step at its start).
-const STILL_FALLING: f64 = 0.9;
-/// A steady decline counts once the step is under this fraction of its peak
-/// (one order of magnitude).
-const DECLINE_DROP: f64 = 0.1;
-/// Rows the step must stay under `WARN_DROP` of its peak before a warning.
-const PERSIST_ROWS: usize = 3;
-/// Rows under `WARN_DROP` of the peak, without recovering, that mean the run
-/// has stalled: critical.
-const STALL_ROWS: usize = TREND_ROWS;
+/// Rows per block of the step's history; each block keeps its largest step.
+const BLOCK_ROWS: usize = 16;
+/// Blocks kept (2,048 rows).
+const BLOCKS: usize = 128;
+/// "Lower": a block's largest step under this fraction of the block before's
+/// (a plateau with jitter does not qualify).
+const STILL_FALLING: f64 = 0.99;
+/// Fewest consecutive falling blocks, counting the first, that make a decline.
+const MIN_BLOCKS: usize = 4;
+/// No single block may carry more than this share of the fall over the
+/// decline in log terms: a sudden cut followed by a slow drift is not a
+/// steady decline.
+const MAX_BLOCK_SHARE: f64 = 0.6;
+/// A steady decline warns once it has taken the step down by this factor
+/// (one order of magnitude) ...
+const WARN_FALL: f64 = 10.0;
+/// ... and is critical past this factor (two orders of magnitude, still
+/// falling block after block): simulated time has all but stalled.
+const CRITICAL_FALL: f64 = 100.0;
 /// A raised step alarm clears once the step is back above this fraction of its peak.
 const RECOVERED: f64 = 0.1;
+/// The fall of a steady decline ending at the newest block of `blocks`
+/// (largest step of each block, oldest first): the ratio between the first
+/// and the newest of the consecutive falling blocks, when there are at least
+/// `MIN_BLOCKS` of them and no single block carries more than
+/// `MAX_BLOCK_SHARE` of the fall; `None` otherwise.
+pub fn steady_fall(blocks: &[f64]) -> Option<f64> {
+    let n = blocks.len();
+    let mut start = n.checked_sub(1)?;
+    while start > 0 && blocks[start] < STILL_FALLING * blocks[start - 1] && blocks[start] > 0.0 {
+        start -= 1;
+    }
+    let run = &blocks[start..];
+    if run.len() < MIN_BLOCKS {
+        return None;
+    }
+    let total = (run[0] / run[run.len() - 1]).ln();
+    let largest = run
+        .windows(2)
+        .map(|w| (w[0] / w[1]).ln())
+        .fold(0.0, f64::max);
+    (total > 0.0 && largest <= MAX_BLOCK_SHARE * total).then(|| total.exp())
+}
 
 /// The step-size detector.
 pub struct StepSize {
@@ -41,10 +65,14 @@ pub struct StepSize {
     prev_time: Option<f64>,
     prev_step: Option<f64>,
     peak: f64,
-    dts: [f64; DECLINE_ROWS],
-    rows: usize,
+    /// Largest step of each of the last `BLOCKS` complete blocks, oldest first.
+    blocks: std::collections::VecDeque<f64>,
+    /// Largest step of the block being filled, and its rows.
+    block_max: f64,
+    block_rows: usize,
     level: Level,
-    below: usize,
+    /// Fall of the steady decline judged at the last complete block.
+    fall: Option<f64>,
 }
 
 impl StepSize {
@@ -56,10 +84,11 @@ impl StepSize {
             prev_time: None,
             prev_step: None,
             peak: 0.0,
-            dts: [f64::NAN; DECLINE_ROWS],
-            rows: 0,
+            blocks: std::collections::VecDeque::with_capacity(BLOCKS),
+            block_max: 0.0,
+            block_rows: 0,
             level: Level::Ok,
-            below: 0,
+            fall: None,
         }
     }
 
@@ -87,38 +116,31 @@ impl Detector for StepSize {
     fn feed(&mut self, sample: &Sample, shared: &Shared, out: &mut Vec<Finding>) {
         let clock = &shared.clock;
         let dt = self.dt(sample.values, clock);
-        self.rows += 1;
         let time = clock.time;
         let Some(dt) = dt else {
             return;
         };
-        let long_slot = (self.rows - 1) % DECLINE_ROWS;
-        let long_ago = self.dts[long_slot];
-        let old = self.dts[(self.rows - 1 + DECLINE_ROWS - TREND_ROWS) % DECLINE_ROWS];
-        self.dts[long_slot] = dt;
-        // A sustained decline: an order of magnitude under the peak, the
-        // newest step the smallest of the last DECLINE_ROWS, half of what it
-        // was DECLINE_ROWS ago, and falling in both halves of that span (a
-        // sudden drop or a dip that holds or recovers does not qualify).
-        let mid = self.dts[(self.rows - 1 + DECLINE_ROWS / 2) % DECLINE_ROWS];
-        // Cheap tests first: the scan of the whole span runs only when the
-        // step is already falling.
-        let declining = long_ago.is_finite()
-            && dt < FALLING * long_ago
-            && mid < STILL_FALLING * long_ago
-            && old.is_finite()
-            && dt < STILL_FALLING * old
-            && dt < DECLINE_DROP * self.peak.max(dt)
-            && self.dts.iter().all(|v| !v.is_finite() || *v >= dt);
         self.peak = self.peak.max(dt);
         let ratio = dt / self.peak;
-        self.below = if ratio < WARN_DROP { self.below + 1 } else { 0 };
-        let recovering = old.is_finite() && dt > old;
-        let halving = old.is_finite() && dt < FALLING * old;
-        let stalled = self.below >= STALL_ROWS && !recovering;
-        let level = if (ratio < CRITICAL_DROP && halving) || stalled || declining {
+        self.block_max = self.block_max.max(dt);
+        self.block_rows += 1;
+        if self.block_rows == BLOCK_ROWS {
+            if self.blocks.len() == BLOCKS {
+                self.blocks.pop_front();
+            }
+            self.blocks.push_back(self.block_max);
+            self.block_max = 0.0;
+            self.block_rows = 0;
+            self.fall = steady_fall(self.blocks.make_contiguous());
+        }
+        // A decline ends as soon as the step grows back.
+        if self.fall.is_some() && dt > self.blocks.back().copied().unwrap_or(f64::INFINITY) {
+            self.fall = None;
+        }
+        let fall = self.fall.unwrap_or(1.0);
+        let level = if fall >= CRITICAL_FALL {
             Level::Critical
-        } else if self.below >= PERSIST_ROWS {
+        } else if fall >= WARN_FALL {
             Level::Warning
         } else if ratio > RECOVERED {
             Level::Ok
@@ -132,24 +154,14 @@ impl Detector for StepSize {
                     dt,
                     ratio * 100.0
                 ),
-                _ => {
-                    let mut m = format!(
-                        "Time step collapsing: {:.3e}, {:.1e} of its peak {:.3e} and still falling — elements are distorting; expect the run to stall or stop.",
-                        dt, ratio, self.peak
-                    );
-                    // Geometric decline by r per output: the simulated time still
-                    // reachable is bounded by the sum Δt_row·(1 + r + r² + …).
-                    if long_ago.is_finite() && dt < long_ago {
-                        let r = (dt / long_ago).powf(1.0 / DECLINE_ROWS as f64);
-                        if let (Some(t), Some(tpr)) = (time, clock.time_per_row) {
-                            m += &format!(
-                                " At this rate of decline the run cannot get past t = {:.6e}.",
-                                t + tpr / (1.0 - r)
-                            );
-                        }
-                    }
-                    m
-                }
+                Level::Warning => format!(
+                    "Time step falling steadily: {dt:.3e} ({ratio:.1e} of its peak {:.3e}), down ×{fall:.0} and lower in every block of {BLOCK_ROWS} rows — elements may be distorting.",
+                    self.peak
+                ),
+                Level::Critical => format!(
+                    "Time step collapsing: {dt:.3e} ({ratio:.1e} of its peak {:.3e}), down ×{fall:.0} and still lower in every block of {BLOCK_ROWS} rows, with no recovery: simulated time has all but stalled — elements are distorting; expect the run to stall or stop.",
+                    self.peak
+                ),
             };
             self.level = level;
             out.push(Finding {
@@ -160,5 +172,26 @@ impl Detector for StepSize {
                 evidence: Evidence::default(),
             });
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn steady_fall_needs_every_block_lower_and_no_single_drop() {
+        let geometric: Vec<f64> = (0..10).map(|i| 0.5f64.powi(i)).collect();
+        let f = steady_fall(&geometric).unwrap_or(0.0);
+        assert!((f - 512.0).abs() < 1e-9, "{f}");
+        // A plateau, then a cut by 10^3 and a slow drift: the fall sits in one block.
+        let cut = [1.0, 1.0, 1.0, 1e-3, 0.97e-3, 0.94e-3, 0.91e-3];
+        assert_eq!(steady_fall(&cut), None);
+        // A decline that has turned back up is not one any more.
+        let mut back = geometric.clone();
+        back.push(0.01);
+        assert_eq!(steady_fall(&back), None);
+        // Too short.
+        assert_eq!(steady_fall(&[1.0, 0.1, 0.01]), None);
     }
 }

@@ -258,11 +258,12 @@ fn crush_collapse() -> Setup {
         StepRule::Adaptive {
             safety: 0.9,
             dt_max_s: 1.0,
+            max_growth: f64::INFINITY,
         },
         3.0,
     );
-    s.dt_min_s = Some(1e-2 * dt0);
-    s.every = 10;
+    s.dt_min_s = Some(1e-3 * dt0);
+    s.every = 30;
     s.probes = vec![disp(1, "u2", "displacement mass 2")];
     s
 }

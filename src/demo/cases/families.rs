@@ -143,6 +143,7 @@ pub(crate) fn adaptive_dip_with(safety: f64, k_c: f64, gap: f64, damping: f64) -
         StepRule::Adaptive {
             safety,
             dt_max_s: 1.0,
+            max_growth: f64::INFINITY,
         },
         3.0,
     );

@@ -7,6 +7,7 @@
 
 mod blowups;
 pub mod families;
+mod steps;
 mod traps;
 
 use crate::demo::run::Setup;
@@ -25,6 +26,7 @@ pub struct Spec {
 pub fn specs() -> Vec<Spec> {
     let mut v = blowups::specs();
     v.extend(traps::specs());
+    v.extend(steps::specs());
     v
 }
 
