@@ -5,6 +5,7 @@ mod batch_job;
 mod demo_sim;
 mod detect_checks;
 mod detect_eval;
+mod evaluate_labels;
 mod fleet_cli;
 mod guard;
 mod hostile_paths;

@@ -15,11 +15,18 @@ Sets:
   variants    the catalogue with twice and three times the output interval
               and other noise seeds (cases the thresholds were not set on)
 
+A labelled directory of your own is scored with --labels: a labels.csv whose
+header names `file` (relative to the CSV) and `level` (ok, warning, critical),
+and optionally `case`, `onset_line` and `crash_line` (1-based physical lines);
+other columns are ignored. `rhoscope demo --write-all DIR` and the real-solver
+drivers (`python3 tests/solvers/generate.py DIR`) write such a file.
+
 Examples:
   rhoscope evaluate
   rhoscope evaluate --case chain-stop-cd
   rhoscope evaluate --variants
   rhoscope evaluate --set variants --case chain-stop-cd
+  rhoscope evaluate --labels runs/labels.csv
 
 Exit codes: 0 every set meets its targets, 1 a set misses them, 3 usage error."
 )]
@@ -30,7 +37,11 @@ pub struct EvaluateArgs {
     /// Also score the variants set (same as adding `--set variants`).
     #[arg(long)]
     pub variants: bool,
-    /// Score this set (repeatable; default: catalogue). See the list below.
+    /// Score this set (repeatable; default: catalogue, unless --labels is
+    /// given). See the list below.
     #[arg(long = "set", value_name = "NAME")]
     pub sets: Vec<String>,
+    /// Score the labelled histories listed in this labels.csv (repeatable).
+    #[arg(long = "labels", value_name = "CSV")]
+    pub labels: Vec<std::path::PathBuf>,
 }

@@ -1,16 +1,18 @@
 //! `rhoscope evaluate`: wiring only — build the labelled sets asked for
-//! ([`crate::evaluate::registry`]), score them, print one table per set.
+//! ([`crate::evaluate::registry`], and labels files through
+//! [`crate::evaluate::labelled`]), score them, print one table per set.
 
 use anyhow::bail;
 
 use crate::cli::evaluate::EvaluateArgs;
-use crate::evaluate::{self, Filter, SetSpec};
+use crate::evaluate::{self, Filter, Set, SetSpec, labelled, selected};
+use crate::settings::Settings;
 
 /// Run `rhoscope evaluate`; returns the exit code.
 pub fn run(args: EvaluateArgs) -> anyhow::Result<i32> {
     let registry = evaluate::registry();
     let mut names: Vec<&str> = args.sets.iter().map(String::as_str).collect();
-    if names.is_empty() {
+    if names.is_empty() && args.labels.is_empty() {
         names.push(evaluate::demo::CATALOGUE);
     }
     if args.variants && !names.contains(&evaluate::demo::VARIANTS) {
@@ -27,9 +29,23 @@ pub fn run(args: EvaluateArgs) -> anyhow::Result<i32> {
             }
         }
     }
+    let mut labelled_sets: Vec<Set> = Vec::with_capacity(args.labels.len());
+    for path in &args.labels {
+        labelled_sets.push(labelled::read(path, &Settings::default())?);
+    }
+    let labelled_names = |name: &String| {
+        labelled_sets
+            .iter()
+            .any(|s| s.cases.iter().any(|c| &c.name == name))
+    };
     for name in &args.cases {
-        if !specs.iter().any(|s| (s.names)().contains(name)) {
+        if !specs.iter().any(|s| (s.names)().contains(name)) && !labelled_names(name) {
             let mut known: Vec<String> = specs.iter().flat_map(|s| (s.names)()).collect();
+            known.extend(
+                labelled_sets
+                    .iter()
+                    .flat_map(|s| s.cases.iter().map(|c| c.name.clone())),
+            );
             known.sort();
             known.dedup();
             bail!("unknown case '{name}' (known: {})", known.join(", "));
@@ -39,6 +55,10 @@ pub fn run(args: EvaluateArgs) -> anyhow::Result<i32> {
     let mut sets = Vec::with_capacity(specs.len());
     for s in &specs {
         sets.push((s.build)(filter)?);
+    }
+    for mut set in labelled_sets {
+        set.cases.retain(|c| selected(filter, &c.name));
+        sets.push(set);
     }
     let mut text = String::new();
     let mut met = true;

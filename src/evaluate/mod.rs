@@ -4,9 +4,12 @@
 //! one [`Settings`]. [`score_set`] reads every case through the same
 //! [`Pipeline`] as `scan` and scores its alarms ([`score`]); [`registry`]
 //! lists the sets `rhoscope evaluate --set` knows (the demo catalogue and its
-//! variants, in [`demo`]). A new set plugs in by adding a [`SetSpec`] there.
+//! variants, in [`demo`]). A new set plugs in by adding a [`SetSpec`] there;
+//! a labelled directory (`labels.csv` beside its histories) is read by
+//! [`labelled`].
 
 pub mod demo;
+pub mod labelled;
 pub mod score;
 
 use std::path::PathBuf;

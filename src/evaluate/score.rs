@@ -139,13 +139,19 @@ fn level_word(l: Level) -> &'static str {
 /// The table and totals as plain text.
 pub fn table(cases: &[CaseScore]) -> String {
     let opt = |v: Option<u64>| v.map_or("-".to_string(), |v| v.to_string());
+    // The case column fits the longest name (files of a labelled directory
+    // are often longer than the catalogue's names).
+    let w = cases
+        .iter()
+        .map(|c| c.name.chars().count())
+        .fold(30, usize::max);
     let mut s = format!(
-        "{:<30} {:<9} {:<9} {:>7} {:>7} {:>9} {:<9} {:>6}\n",
+        "{:<w$} {:<9} {:<9} {:>7} {:>7} {:>9} {:<9} {:>6}\n",
         "case", "expected", "got", "onset", "crash", "1st alarm", "by", "lead"
     );
     for c in cases {
         s += &format!(
-            "{:<30} {:<9} {:<9} {:>7} {:>7} {:>9} {:<9} {:>6}\n",
+            "{:<w$} {:<9} {:<9} {:>7} {:>7} {:>9} {:<9} {:>6}\n",
             c.name,
             level_word(c.expected.level),
             level_word(c.got),
