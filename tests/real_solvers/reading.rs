@@ -13,13 +13,27 @@
 //! TotEng Press` by default) over numeric rows, closed by `Loop time of`
 //! (LAMMPS manual, `thermo_style`).
 
-use super::{Case, columns, runs, scan};
+use super::{Case, Runs, columns, runs, scan};
+use rhoscope::report::ColumnEntry;
 
-fn names(cols: &[rhoscope::report::ColumnEntry]) -> Vec<&str> {
+/// Roles of the columns, in order.
+fn roles(cols: &[ColumnEntry]) -> Vec<&str> {
+    cols.iter().map(|c| c.role.as_str()).collect()
+}
+
+/// Cases whose file name ends with `suffix`.
+fn with_suffix<'a>(r: &'a Runs, suffix: &str) -> Vec<&'a Case> {
+    r.cases
+        .iter()
+        .filter(|c| c.file.ends_with(suffix))
+        .collect()
+}
+
+fn names(cols: &[ColumnEntry]) -> Vec<&str> {
     cols.iter().map(|c| c.name.as_str()).collect()
 }
 
-fn assert_md_roles(c: &Case, cols: &[rhoscope::report::ColumnEntry]) {
+fn assert_md_roles(c: &Case, cols: &[ColumnEntry]) {
     // The name as written, or with the per-atom `/N` kept.
     let role_of = |prefix: &str| {
         cols.iter()
@@ -61,4 +75,171 @@ fn ase_logs_count_rows_and_restarts() {
     let rep = scan(&r.path(r.case("ase-cu-restart-larger-step")));
     assert_eq!(rep.segments.len(), 1, "{:?}", rep.segments);
     assert_eq!(rep.segments[0].reason, "new_header");
+}
+
+#[test]
+fn headerless_recorders_read_time_first() {
+    let Some(r) = runs() else { return };
+    let files = with_suffix(r, ".out");
+    assert!(!files.is_empty());
+    for c in files {
+        let cols = columns(&r.path(c));
+        let roles = roles(&cols);
+        assert_eq!(
+            roles[0], "time",
+            "{}: the recorder's first column is time ({:?})",
+            c.file, cols[0]
+        );
+        assert_eq!(
+            roles.iter().filter(|&&x| x == "time").count(),
+            1,
+            "{}: one time column ({roles:?})",
+            c.file
+        );
+    }
+}
+
+#[test]
+fn xml_recorders_are_named_from_their_markup() {
+    let Some(r) = runs() else { return };
+    let files = with_suffix(r, ".xml");
+    assert!(!files.is_empty());
+    for c in files {
+        let cols = columns(&r.path(c));
+        assert_eq!(roles(&cols)[0], "time", "{}: {cols:?}", c.file);
+        // The frame's recorders list nodes 1..6, dof 1: six displacement columns.
+        assert_eq!(cols.len(), 7, "{}: {:?}", c.file, names(&cols));
+        for (i, col) in cols[1..].iter().enumerate() {
+            let n = col.name.to_lowercase();
+            let node = (i + 1).to_string();
+            assert!(
+                n.contains("d1") && n.split(|ch: char| !ch.is_ascii_digit()).any(|t| t == node),
+                "{}: column {} should name node {node} and D1, got {:?}",
+                c.file,
+                i + 2,
+                col.name
+            );
+        }
+    }
+}
+
+#[test]
+fn recorder_files_count_only_data_rows() {
+    let Some(r) = runs() else { return };
+    for c in r.by_solver("opensees") {
+        let rep = scan(&r.path(c));
+        assert_eq!(rep.rows, c.rows, "{}: data rows", c.file);
+        assert_eq!(
+            rep.skipped_rows, 0,
+            "{}: nothing in a recorder file is a bad row ({:?})",
+            c.file, rep.skipped
+        );
+    }
+}
+
+#[test]
+fn ase_stress_banner_does_not_name_columns() {
+    let Some(r) = runs() else { return };
+    let c = r.case("ase-cu-nve-stress");
+    let cols = columns(&r.path(c));
+    assert_eq!(cols.len(), 11, "{:?}", names(&cols));
+    for col in &cols[5..] {
+        assert!(
+            !col.name.contains("--") && !col.name.eq_ignore_ascii_case("stress"),
+            "a banner word became a column name: {:?}",
+            names(&cols)
+        );
+        assert_eq!(col.role, "probe", "{col:?}");
+    }
+}
+
+#[test]
+fn lammps_logs_find_the_thermo_table() {
+    let Some(r) = runs() else { return };
+    let custom = columns(&r.path(r.case("lmp-lj-nve")));
+    assert_eq!(
+        names(&custom),
+        [
+            "Step", "Time", "Temp", "KinEng", "PotEng", "TotEng", "Press"
+        ]
+    );
+    assert_eq!(
+        roles(&custom),
+        [
+            "step_number",
+            "time",
+            "probe",
+            "kinetic",
+            "internal",
+            "total",
+            "probe"
+        ]
+    );
+    let default = columns(&r.path(r.case("lmp-lj-nve-default-thermo")));
+    assert_eq!(
+        names(&default),
+        ["Step", "Temp", "E_pair", "E_mol", "TotEng", "Press"]
+    );
+    let role = |n: &str| {
+        default
+            .iter()
+            .find(|c| c.name == n)
+            .map(|c| c.role.as_str())
+            .unwrap()
+    };
+    assert_eq!(role("Step"), "step_number");
+    assert_eq!(role("Temp"), "probe");
+    assert_eq!(role("E_pair"), "internal");
+    assert_eq!(role("TotEng"), "total");
+}
+
+#[test]
+fn lammps_logs_count_rows_and_runs() {
+    let Some(r) = runs() else { return };
+    for c in r.by_solver("lammps") {
+        let rep = scan(&r.path(c));
+        assert_eq!(rep.rows, c.rows, "{}: thermo rows", c.file);
+        assert_eq!(
+            rep.skipped_rows, 0,
+            "{}: banner, echoed input and run statistics are outside the table: {:?}",
+            c.file, rep.skipped
+        );
+    }
+    for name in [
+        "lmp-lj-equilibrate-then-nve",
+        "lmp-lj-second-run-larger-step",
+    ] {
+        let rep = scan(&r.path(r.case(name)));
+        assert_eq!(
+            rep.segments.len(),
+            1,
+            "{name}: the second run is a new segment: {:?}",
+            rep.segments
+        );
+    }
+}
+
+/// The LAMMPS logs written with the default thermo table (no time column).
+pub const DEFAULT_THERMO: [&str; 2] = ["lmp-lj-nve-default-thermo", "lmp-lj-nve-step-too-large"];
+
+#[test]
+fn every_alarm_carries_a_time() {
+    let Some(r) = runs() else { return };
+    for c in &r.cases {
+        // LAMMPS's default thermo table has no time column; its time is the
+        // step times the echoed `timestep` (reading_pending on the branch).
+        if DEFAULT_THERMO.contains(&c.case.as_str()) {
+            continue;
+        }
+        let rep = scan(&r.path(c));
+        for a in &rep.alarms {
+            assert!(
+                a.time.is_some(),
+                "{}: alarm at line {} has no time: {}",
+                c.file,
+                a.line,
+                a.message
+            );
+        }
+    }
 }
