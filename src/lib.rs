@@ -16,6 +16,7 @@ pub mod detect;
 pub mod evaluate;
 pub mod finding;
 pub mod fleet;
+pub mod guard;
 pub mod history;
 pub mod metrics;
 pub mod outfile;

@@ -1,6 +1,6 @@
 //! The scan report: serde types of the JSON contract that scripts rely on, and a
 //! [`ReportBuilder`] that collects it from a [`Pipeline`](crate::pipeline::Pipeline)
-//! as a [`PipelineSink`]. Non-finite numbers are written as `null`. Pure: the
+//! as a [`Sink`]. Non-finite numbers are written as `null`. Pure: the
 //! command prints what this module builds.
 
 use serde::{Deserialize, Serialize};
@@ -9,7 +9,7 @@ use crate::alarm::Alarm;
 use crate::finding::Level;
 use crate::parse::roles::RoleMap;
 use crate::parse::{NamesFrom, Schema, SegmentReason, SkipReason};
-use crate::pipeline::PipelineSink;
+use crate::pipeline::sink::Sink;
 
 /// How many skipped lines are listed one by one (all are counted).
 pub const MAX_LISTED_SKIPS: usize = 100;
@@ -157,7 +157,7 @@ pub struct ReportBuilder {
     table: TableEntry,
 }
 
-impl PipelineSink for ReportBuilder {
+impl Sink for ReportBuilder {
     fn alarm(&mut self, a: &Alarm) {
         let time = finite(a.time);
         if a.detector == "nonfinite" && a.level == Level::Critical && self.blowup.is_none() {

@@ -20,7 +20,7 @@ use rhoscope::finding::Evidence;
 use rhoscope::fleet::RunRow;
 use rhoscope::parse::roles::{EnergyTerm, Role, RoleMap};
 use rhoscope::parse::{Column, Schema};
-use rhoscope::pipeline::PipelineSink;
+use rhoscope::pipeline::sink::Sink;
 use rhoscope::ui::chart::{Series, Spec, fitted};
 
 /// A frame that takes longer than this is taken for a hang (a normal frame

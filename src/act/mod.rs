@@ -9,14 +9,12 @@ mod escalation;
 mod log;
 mod process;
 mod stopfile;
-mod supervise;
 
 pub use command::{CommandEnd, RunningCommand, alarm_env};
 pub use escalation::{ActionReport, ActionSpec, Activity, Escalation, EscalationConfig, Outcome};
 pub use log::{EventLog, Record, stderr_line, utc_clock};
 pub use process::{ProcessId, Refusal, parse_signal, start_ticks_from_stat};
 pub use stopfile::{check_at_start, create_stop_file};
-pub use supervise::{End, Summary, SuperviseOptions, supervise};
 
 #[cfg(test)]
 mod escalation_tests;

@@ -91,7 +91,7 @@ impl Batch {
         self.items.is_empty() && self.status.is_none() && self.undrawn_rows == 0
     }
 }
-impl crate::pipeline::PipelineSink for Batch {
+impl crate::pipeline::sink::Sink for Batch {
     fn alarm(&mut self, alarm: &Alarm) {
         self.items.push(Item::Alarm(alarm.clone()));
     }

@@ -142,7 +142,7 @@ mod tests {
     use super::*;
     use crate::alarm::Alarm;
     use crate::finding::Level;
-    use crate::pipeline::PipelineSink;
+    use crate::pipeline::sink::Sink;
 
     fn row(name: &str, level: Level) -> RunRow {
         let mut r = RunRow::new(name.into(), PathBuf::from(format!("{name}/h.csv")));

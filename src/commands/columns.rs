@@ -1,19 +1,21 @@
 //! `rhoscope columns`: the table of column → role, and why, for a history file.
 
-use std::io::Read;
-
-use anyhow::{Context, bail};
+use anyhow::bail;
 
 use crate::alarm::Alarm;
 use crate::cli::columns::ColumnsArgs;
 use crate::parse::roles::RoleMap;
 use crate::parse::{Schema, SkipReason};
-use crate::pipeline::{Pipeline, PipelineSink};
+use crate::pipeline::Pipeline;
+use crate::pipeline::drive::drive_file;
+use crate::pipeline::sink::{Flow, Progress, Sink};
 use crate::report::{ColumnEntry, TableEntry, column_entries};
 use crate::settings::Settings;
 
 /// Bytes read before giving up on finding a first row.
 const LOOK_BYTES: u64 = 16 << 20;
+/// Bytes fed between two looks at whether a row has come.
+const SLICE_BYTES: usize = 64 * 1024;
 
 #[derive(Default)]
 struct FirstColumns {
@@ -24,9 +26,10 @@ struct FirstColumns {
     outside: u64,
     /// Notes the reader made before the first row (encoding, header).
     notes: Vec<String>,
+    slices: u64,
 }
 
-impl PipelineSink for FirstColumns {
+impl Sink for FirstColumns {
     fn alarm(&mut self, _alarm: &Alarm) {}
     fn schema(&mut self, _line: u64, schema: &Schema, roles: &RoleMap) {
         if self.rows == 0 {
@@ -47,6 +50,15 @@ impl PipelineSink for FirstColumns {
             _ => {}
         }
     }
+    /// Enough once a row has come, or after [`LOOK_BYTES`] without one.
+    fn checkpoint(&mut self, _arrival_s: Option<f64>, _p: &mut dyn Progress) -> Flow {
+        self.slices += 1;
+        if self.rows > 0 || self.slices * SLICE_BYTES as u64 >= LOOK_BYTES {
+            Flow::Stop
+        } else {
+            Flow::Go
+        }
+    }
 }
 
 /// Run `rhoscope columns`; returns the exit code.
@@ -55,22 +67,15 @@ pub fn run(args: ColumnsArgs) -> anyhow::Result<i32> {
     for note in &settings.notes {
         eprintln!("rhoscope: {note}");
     }
-    let (mut file, _) = super::scan::open_history(&args.file)?;
     let mut pipeline = Pipeline::new(&settings);
     let mut sink = FirstColumns::default();
-    let mut buf = vec![0u8; 64 * 1024];
-    let mut read = 0u64;
-    while sink.rows == 0 && read < LOOK_BYTES {
-        let n = file
-            .read(&mut buf)
-            .with_context(|| format!("{}: read failed", args.file.display()))?;
-        if n == 0 {
-            pipeline.finish(&mut sink);
-            break;
-        }
-        read += n as u64;
-        pipeline.feed(&buf[..n], None, &mut sink);
-    }
+    drive_file(
+        &args.file,
+        &mut pipeline,
+        &mut sink,
+        SLICE_BYTES,
+        &mut |_, _| {},
+    )?;
     let Some(columns) = sink.columns.clone().filter(|_| sink.rows > 0) else {
         bail!("{}: no data row, so no columns", args.file.display());
     };

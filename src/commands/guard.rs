@@ -7,13 +7,12 @@ use std::time::Duration;
 
 use anyhow::{Context, bail};
 
-use crate::act::{
-    ActionSpec, EscalationConfig, EventLog, ProcessId, SuperviseOptions, parse_signal, supervise,
-};
-use crate::act::{End, Escalation};
+use crate::act::Escalation;
+use crate::act::{ActionSpec, EscalationConfig, EventLog, ProcessId, parse_signal};
 use crate::cli::actions::{ActionArgs, parse_duration};
 use crate::cli::follow::POLL_DEFAULT;
 use crate::cli::guard::GuardArgs;
+use crate::guard::{End, SuperviseOptions, supervise};
 use crate::outfile::{Output, OutputKind, Watched, check_outputs};
 use crate::pipeline::Pipeline;
 use crate::settings::Settings;

@@ -1,22 +1,20 @@
 //! `rhoscope scan`: read a finished or crashed history through the pipeline and
 //! print the report (text, or JSON for scripts); the exit code is the status.
 
-use std::io::{IsTerminal, Read, Write};
+use std::io::{IsTerminal, Write};
 use std::path::Path;
 
 use anyhow::{Context, bail};
 
 use crate::cli::scan::ScanArgs;
-use crate::pipeline::{Pipeline, PipelineSink};
+use crate::pipeline::Pipeline;
+use crate::pipeline::drive::{FILE_SLICE_BYTES, drive_file};
 use crate::report::{ReportBuilder, ScanReport};
 use crate::report_plot::{PlotCollector, Tee};
 use crate::settings::Settings;
 
 /// Files at least this large get a progress bar (when stderr is a terminal).
 const PROGRESS_MIN_BYTES: u64 = 64 << 20;
-
-/// Bytes read per call.
-const CHUNK_BYTES: usize = 1 << 20;
 
 /// Run `rhoscope scan`; returns the exit code.
 pub fn run(args: ScanArgs) -> anyhow::Result<i32> {
@@ -60,41 +58,10 @@ pub fn write_stdout(bytes: &[u8]) -> anyhow::Result<()> {
     }
 }
 
-/// Open `path` for reading as a history, with a one-line error naming the file.
-pub fn open_history(path: &Path) -> anyhow::Result<(std::fs::File, u64)> {
-    let meta =
-        std::fs::metadata(path).with_context(|| format!("{}: cannot open", path.display()))?;
-    if meta.is_dir() {
-        bail!("{}: is a directory, not a history file", path.display());
-    }
-    let file =
-        std::fs::File::open(path).with_context(|| format!("{}: cannot open", path.display()))?;
-    Ok((file, meta.len()))
-}
-
-/// Feed the whole file at `path` through `pipeline` into `sink`, streaming in
-/// chunks; returns the bytes read.
-pub fn feed_file<S: PipelineSink>(
-    path: &Path,
-    pipeline: &mut Pipeline,
-    sink: &mut S,
-    progress: bool,
-) -> anyhow::Result<u64> {
-    feed_file_sampled(path, pipeline, sink, progress, CHUNK_BYTES, |_, _| {})
-}
-
-/// [`feed_file`], calling `after` with the pipeline and the sink after every
-/// `slice_bytes` bytes fed (to sample the detectors' status along the way).
-pub fn feed_file_sampled<S: PipelineSink>(
-    path: &Path,
-    pipeline: &mut Pipeline,
-    sink: &mut S,
-    progress: bool,
-    slice_bytes: usize,
-    mut after: impl FnMut(&mut Pipeline, &mut S),
-) -> anyhow::Result<u64> {
-    let (mut file, size) = open_history(path)?;
-    let bar = (progress && size >= PROGRESS_MIN_BYTES).then(|| {
+/// A progress bar on stderr for files of at least [`PROGRESS_MIN_BYTES`].
+fn progress_bar(path: &Path, show: bool) -> Option<indicatif::ProgressBar> {
+    let size = std::fs::metadata(path).map(|m| m.len()).unwrap_or(0);
+    (show && size >= PROGRESS_MIN_BYTES).then(|| {
         let bar = indicatif::ProgressBar::with_draw_target(
             Some(size),
             indicatif::ProgressDrawTarget::stderr(),
@@ -105,33 +72,7 @@ pub fn feed_file_sampled<S: PipelineSink>(
             bar.set_style(style);
         }
         bar
-    });
-    let mut buf = vec![0u8; CHUNK_BYTES];
-    let mut total = 0u64;
-    loop {
-        let n = match file.read(&mut buf) {
-            Ok(0) => break,
-            Ok(n) => n,
-            Err(e) if e.kind() == std::io::ErrorKind::Interrupted => continue,
-            Err(e) => {
-                return Err(e).with_context(|| format!("{}: read failed", path.display()));
-            }
-        };
-        total += n as u64;
-        for slice in buf[..n].chunks(slice_bytes.max(1)) {
-            pipeline.feed(slice, None, sink);
-            after(pipeline, sink);
-        }
-        if let Some(b) = &bar {
-            b.set_position(total);
-        }
-    }
-    pipeline.finish(sink);
-    after(pipeline, sink);
-    if let Some(b) = bar {
-        b.finish_and_clear();
-    }
-    Ok(total)
+    })
 }
 
 /// Scan the history at `path` into a report. A file that cannot be opened, or
@@ -150,23 +91,31 @@ pub fn scan_path_with(
 ) -> anyhow::Result<ScanReport> {
     let mut pipeline = Pipeline::new(settings);
     let mut builder = ReportBuilder::default();
+    let bar = progress_bar(path, progress);
+    let mut on_read = |read: u64, _size: u64| {
+        if let Some(b) = &bar {
+            b.set_position(read);
+        }
+    };
     let bytes = match plot {
-        None => feed_file(path, &mut pipeline, &mut builder, progress)?,
+        None => drive_file(
+            path,
+            &mut pipeline,
+            &mut builder,
+            FILE_SLICE_BYTES,
+            &mut on_read,
+        )?,
         Some((plot, slice_bytes)) => {
             let mut tee = Tee {
                 report: &mut builder,
                 plot,
             };
-            feed_file_sampled(
-                path,
-                &mut pipeline,
-                &mut tee,
-                progress,
-                slice_bytes,
-                |p, t| t.plot.sample_status(&p.status().evidence),
-            )?
+            drive_file(path, &mut pipeline, &mut tee, slice_bytes, &mut on_read)?
         }
     };
+    if let Some(b) = bar {
+        b.finish_and_clear();
+    }
     if pipeline.rows() == 0 {
         let what = if bytes == 0 {
             "the file is empty".to_owned()

@@ -18,6 +18,7 @@ use anyhow::Context;
 
 use crate::alarm::Alarm;
 use crate::pipeline::Pipeline;
+use crate::pipeline::drive::{FILE_SLICE_BYTES, drive_file};
 use crate::settings::Settings;
 
 pub use score::{CaseScore, Label, Totals};
@@ -126,9 +127,17 @@ pub fn score_set(set: &Set) -> anyhow::Result<SetScore> {
         let alarms = match &c.input {
             Input::Bytes(b) => alarms_of(b, &set.settings),
             Input::Path(p) => {
-                let bytes = std::fs::read(p)
-                    .with_context(|| format!("{}: cannot read case '{}'", p.display(), c.name))?;
-                alarms_of(&bytes, &set.settings)
+                let mut pipeline = Pipeline::new(&set.settings);
+                let mut alarms: Vec<Alarm> = Vec::new();
+                drive_file(
+                    p,
+                    &mut pipeline,
+                    &mut alarms,
+                    FILE_SLICE_BYTES,
+                    &mut |_, _| {},
+                )
+                .with_context(|| format!("case '{}'", c.name))?;
+                alarms
             }
         };
         cases.push(score::score(&c.name, c.label, &alarms));

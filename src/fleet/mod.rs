@@ -3,7 +3,7 @@
 //! per step, overflow forecast, age of the last output and whether the run has
 //! stalled — and the worst-first order in which to show them. The rows are
 //! plain data updated from the pipeline's output ([`RunRow`] is a
-//! [`PipelineSink`]); following the files is [`tracker`]'s job, finding them is
+//! [`Sink`]); following the files is [`tracker`]'s job, finding them is
 //! [`glob`]'s, and the shared kernel notifications are [`hint`]'s.
 
 pub mod glob;
@@ -17,7 +17,7 @@ use crate::alarm::Alarm;
 use crate::finding::Level;
 use crate::parse::roles::{Role, RoleMap};
 use crate::parse::{Schema, SegmentReason};
-use crate::pipeline::PipelineSink;
+use crate::pipeline::sink::{Flow, Note, Progress, Sink};
 
 pub use tracker::{Fleet, FleetConfig};
 
@@ -192,7 +192,7 @@ impl RunRow {
     }
 }
 
-impl PipelineSink for RunRow {
+impl Sink for RunRow {
     fn alarm(&mut self, alarm: &Alarm) {
         match alarm.level {
             Level::Critical => self.criticals_total += 1,
@@ -228,6 +228,24 @@ impl PipelineSink for RunRow {
         if !reason.is_note() {
             self.skipped_total += 1;
         }
+    }
+
+    fn note(&mut self, note: &Note) {
+        match note {
+            Note::Arrived { bytes, arrival_s } => {
+                self.arriving(*arrival_s, *bytes);
+                self.note = None;
+            }
+            Note::Appeared => self.file = FileState::Reading,
+            Note::Missing => self.file = FileState::Missing,
+            Note::ReadError(e) => self.note = Some(e.clone()),
+            Note::Restarted(_) | Note::CaughtUp { .. } => {}
+        }
+    }
+
+    fn checkpoint(&mut self, _arrival_s: Option<f64>, progress: &mut dyn Progress) -> Flow {
+        self.take_status(&progress.status().evidence);
+        Flow::Go
     }
 }
 

@@ -19,12 +19,13 @@ use std::time::{Duration, Instant};
 
 use crate::cli::input::InputArgs;
 use crate::pipeline::Pipeline;
+use crate::pipeline::drive::Follow;
 use crate::settings::Settings;
-use crate::source::{Event, FollowConfig, Follower, Source};
+use crate::source::{FollowConfig, Follower};
 
+use super::RunRow;
 use super::glob::{Found, expand};
 use super::hint::SharedHint;
-use super::{FileState, RunRow};
 
 /// How the fleet is followed.
 #[derive(Debug, Clone)]
@@ -63,6 +64,7 @@ impl Default for FleetConfig {
 
 struct Run {
     follower: Follower,
+    follow: Follow,
     pipeline: Pipeline,
     row: RunRow,
 }
@@ -204,6 +206,7 @@ impl Fleet {
         self.by_key.insert(k, self.runs.len());
         self.runs.push(Run {
             follower,
+            follow: Follow::new(self.t0, self.cfg.chunk_bytes),
             pipeline: Pipeline::new(&settings),
             row,
         });
@@ -229,7 +232,6 @@ impl Fleet {
         // At most one second's worth of early polls can be saved up.
         self.tokens = (self.tokens + since * rate).min(rate.max(1.0));
         self.tokens_at = self.tokens_at.max(now);
-        let now_s = self.secs(now);
         let n = self.runs.len();
         let mut polled = 0;
         let mut next_cursor = self.cursor;
@@ -253,7 +255,8 @@ impl Fleet {
                 if s.hinted {
                     run.follower.nudge();
                 }
-                poll_run(run, now_s);
+                run.follow
+                    .drain(&mut run.follower, &mut run.pipeline, &mut run.row, now);
             }
             self.sched[i] = Sched {
                 next_poll: now + self.cfg.poll_interval,
@@ -338,46 +341,11 @@ impl Fleet {
     }
 }
 
-/// Read everything new of one run through its pipeline.
-fn poll_run(run: &mut Run, now_s: f64) {
-    let mut changed = false;
-    loop {
-        let got = run.follower.poll();
-        changed |= !matches!(got, Ok(None));
-        match got {
-            Ok(Some(Event::Data(bytes))) => {
-                run.row.arriving(now_s, bytes.len());
-                run.row.note = None;
-                run.pipeline.feed(&bytes, Some(now_s), &mut run.row);
-            }
-            Ok(Some(Event::Restart(_))) => {
-                run.pipeline.restart(&mut run.row);
-            }
-            Ok(Some(Event::Appeared)) => {
-                run.row.file = FileState::Reading;
-            }
-            Ok(Some(Event::Missing)) => {
-                run.row.file = FileState::Missing;
-            }
-            Ok(None) => break,
-            Err(e) => {
-                run.row.note = Some(e.to_string());
-                break;
-            }
-        }
-    }
-    if !changed {
-        return;
-    }
-    run.row.skipped_total = run.pipeline.skipped();
-    let evidence = run.pipeline.status().evidence.clone();
-    run.row.take_status(&evidence);
-}
-
 #[cfg(test)]
 mod tests {
     #![allow(clippy::unwrap_used)]
     use super::*;
+    use crate::fleet::FileState;
     use std::io::Write;
 
     fn healthy_rows(from: usize, to: usize) -> String {

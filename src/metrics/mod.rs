@@ -192,7 +192,7 @@ mod tests {
     use super::*;
     use crate::alarm::Alarm;
     use crate::finding::Level;
-    use crate::pipeline::PipelineSink;
+    use crate::pipeline::sink::Sink;
     use std::collections::HashSet;
     use std::path::PathBuf;
 

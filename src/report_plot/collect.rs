@@ -8,7 +8,7 @@ use crate::finding::Evidence;
 use crate::finding::Level;
 use crate::parse::roles::{EnergyTerm, Role, RoleMap};
 use crate::parse::{Schema, SegmentReason, SkipReason};
-use crate::pipeline::PipelineSink;
+use crate::pipeline::sink::{Flow, Progress, Sink};
 
 use super::envelope::Envelope;
 use super::{Marker, MarkerKind, PlotData, Series, TitleBlock};
@@ -16,12 +16,12 @@ use super::{Marker, MarkerKind, PlotData, Series, TitleBlock};
 /// Forwards everything to a report sink and to a [`PlotCollector`].
 pub struct Tee<'a> {
     /// The sink that builds the report.
-    pub report: &'a mut dyn PipelineSink,
+    pub report: &'a mut dyn Sink,
     /// The plot data being gathered.
     pub plot: &'a mut PlotCollector,
 }
 
-impl PipelineSink for Tee<'_> {
+impl Sink for Tee<'_> {
     fn alarm(&mut self, alarm: &Alarm) {
         self.report.alarm(alarm);
         self.plot.alarm(alarm);
@@ -41,6 +41,11 @@ impl PipelineSink for Tee<'_> {
     fn skipped(&mut self, line: u64, reason: &SkipReason) {
         self.report.skipped(line, reason);
         self.plot.skipped(line, reason);
+    }
+    /// The detectors' estimates are sampled for the growth and balance panels.
+    fn checkpoint(&mut self, arrival_s: Option<f64>, progress: &mut dyn Progress) -> Flow {
+        self.plot.sample_status(&progress.status().evidence);
+        self.report.checkpoint(arrival_s, progress)
     }
 }
 
@@ -82,7 +87,7 @@ struct Layout {
     probes: Vec<(usize, usize)>,
 }
 
-/// A [`PipelineSink`] that keeps what the report image needs.
+/// A [`Sink`] that keeps what the report image needs.
 #[derive(Debug, Default)]
 pub struct PlotCollector {
     layout: Layout,
@@ -301,7 +306,7 @@ impl PlotCollector {
     }
 }
 
-impl PipelineSink for PlotCollector {
+impl Sink for PlotCollector {
     fn alarm(&mut self, alarm: &Alarm) {
         let (kind, label) = match alarm.level {
             Level::Ok => return,

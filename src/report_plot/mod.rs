@@ -5,7 +5,7 @@
 //! as labelled vertical markers. Greys and dash patterns only, so it reads in
 //! greyscale print.
 //!
-//! [`PlotCollector`] gathers the data as a [`crate::pipeline::PipelineSink`]
+//! [`PlotCollector`] gathers the data as a [`crate::pipeline::sink::Sink`]
 //! (min/max envelopes, bounded memory); [`render_svg`] and [`render_png`] turn
 //! a [`PlotData`] into bytes. No files here: the caller writes the bytes.
 

@@ -24,6 +24,9 @@ pub struct Scripted {
     steps: VecDeque<Step>,
     /// How long `wait` really sleeps (default: not at all).
     pub wait_sleep: Duration,
+    /// What [`Source::start_size`] answers: the bytes "already in the file"
+    /// when following began (default: unknown).
+    pub start_size: Option<u64>,
 }
 
 impl Scripted {
@@ -32,6 +35,7 @@ impl Scripted {
         Self {
             steps: steps.into(),
             wait_sleep: Duration::ZERO,
+            start_size: None,
         }
     }
 
@@ -57,6 +61,10 @@ impl Source for Scripted {
 
     fn ended(&self) -> bool {
         self.steps.is_empty()
+    }
+
+    fn start_size(&self) -> Option<u64> {
+        self.start_size
     }
 
     fn wait(&mut self, max: Duration) {

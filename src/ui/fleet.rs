@@ -139,7 +139,7 @@ mod tests {
     #![allow(clippy::unwrap_used)]
     use super::*;
     use crate::fleet::RunRow;
-    use crate::pipeline::PipelineSink;
+    use crate::pipeline::sink::Sink;
     use ratatui::Terminal;
     use ratatui::backend::TestBackend;
     use std::path::PathBuf;

@@ -4,8 +4,9 @@
 use std::fs;
 use std::time::Duration;
 
-use rhoscope::act::{Escalation, EscalationConfig, EventLog, SuperviseOptions, supervise};
+use rhoscope::act::{Escalation, EscalationConfig, EventLog};
 use rhoscope::alarm::Alarm;
+use rhoscope::guard::{SuperviseOptions, supervise};
 use rhoscope::pipeline::Pipeline;
 use rhoscope::report::ScanReport;
 use rhoscope::settings::Settings;

@@ -1,41 +1,23 @@
-//! Bytes → rows → detectors → alarms, in one object shared by `scan`, `guard`
-//! and `watch`, so that they give the same alarms, line for line, on the same
-//! bytes. The pipeline owns the [`Reader`], the detector [`Engine`] of the current
-//! segment and the [`AlarmBook`]; everything it learns goes to a [`PipelineSink`].
-//! No I/O and no clocks: arrival instants come in as data.
+//! The one path of the data: bytes → rows → detectors → alarms. A
+//! [`Pipeline`] owns the [`Reader`], the detector [`Engine`] of the current
+//! segment and the [`AlarmBook`]; everything it learns goes to a [`Sink`]
+//! ([`sink`]). [`drive`] holds the only loops that feed it — over a plain file
+//! (`scan`, `evaluate`) and over a followed file's events (`guard`, the
+//! dashboard's data thread, the fleet) — so they all give the same alarms,
+//! line for line, on the same bytes. The pipeline itself does no I/O and reads
+//! no clock: arrival instants come in as data.
 
-use crate::alarm::{Alarm, AlarmBook};
+pub mod drive;
+pub mod sink;
+
+use crate::alarm::AlarmBook;
 use crate::detect::{DetectSettings, Engine, Sample, Status};
 use crate::finding::Finding;
 use crate::parse::roles::{RoleMap, RoleRules, assign};
 use crate::parse::{Reader, RowSink, Schema, SegmentReason, SkipReason};
 use crate::settings::Settings;
 
-/// Receives, in file order, what the pipeline finds. Only `alarm` is required.
-pub trait PipelineSink {
-    /// A raised alarm (one per raise, not one per row).
-    fn alarm(&mut self, alarm: &Alarm);
-    /// A schema (with the roles of its columns) applies from `line` on.
-    fn schema(&mut self, _line: u64, _schema: &Schema, _roles: &RoleMap) {}
-    /// A data row at 1-based physical `line`, before the alarms it raises.
-    fn row(&mut self, _line: u64, _values: &[f64]) {}
-    /// A new segment (restart) begins at `line`.
-    fn segment(&mut self, _line: u64, _reason: SegmentReason) {}
-    /// A line was skipped (or noted); counted, never fatal.
-    fn skipped(&mut self, _line: u64, _reason: &SkipReason) {}
-}
-
-/// A sink that ignores everything (for callers that only want [`Pipeline::status`]).
-impl PipelineSink for () {
-    fn alarm(&mut self, _alarm: &Alarm) {}
-}
-
-/// Collects alarms into a vector.
-impl PipelineSink for Vec<Alarm> {
-    fn alarm(&mut self, alarm: &Alarm) {
-        self.push(alarm.clone());
-    }
-}
+use sink::{Progress, Sink};
 
 /// Reader + detectors + alarm book. See the module documentation.
 pub struct Pipeline {
@@ -62,7 +44,7 @@ struct State {
 
 struct Adapter<'a> {
     state: &'a mut State,
-    out: &'a mut dyn PipelineSink,
+    out: &'a mut dyn Sink,
     arrival_s: Option<f64>,
 }
 
@@ -140,7 +122,7 @@ impl Pipeline {
     }
 
     /// Feed the next bytes of the file; `arrival_s` = monotonic seconds when following live.
-    pub fn feed(&mut self, bytes: &[u8], arrival_s: Option<f64>, out: &mut dyn PipelineSink) {
+    pub fn feed(&mut self, bytes: &[u8], arrival_s: Option<f64>, out: &mut dyn Sink) {
         let mut a = Adapter {
             state: &mut self.state,
             out,
@@ -150,7 +132,7 @@ impl Pipeline {
     }
 
     /// End of input (scan): a last line without newline is read as a row.
-    pub fn finish(&mut self, out: &mut dyn PipelineSink) {
+    pub fn finish(&mut self, out: &mut dyn Sink) {
         let mut a = Adapter {
             state: &mut self.state,
             out,
@@ -160,7 +142,7 @@ impl Pipeline {
     }
 
     /// The followed file was truncated or replaced: drop any partial line, start a new segment.
-    pub fn restart(&mut self, out: &mut dyn PipelineSink) {
+    pub fn restart(&mut self, out: &mut dyn Sink) {
         let mut a = Adapter {
             state: &mut self.state,
             out,
@@ -210,9 +192,25 @@ impl Pipeline {
     }
 }
 
+impl Progress for Pipeline {
+    fn status(&mut self) -> &Status {
+        Pipeline::status(self)
+    }
+    fn rows(&self) -> u64 {
+        Pipeline::rows(self)
+    }
+    fn lines(&self) -> u64 {
+        Pipeline::lines(self)
+    }
+    fn skipped(&self) -> u64 {
+        Pipeline::skipped(self)
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::alarm::Alarm;
     use crate::finding::Level;
 
     #[test]
