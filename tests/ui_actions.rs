@@ -213,3 +213,58 @@ fn an_armed_dashboard_signals_on_time_while_its_frame_is_stuck() {
         state.stop
     );
 }
+
+/// A source that hands out some rows, then fails the way a bug would.
+struct Faulty(u32);
+
+impl rhoscope::source::Source for Faulty {
+    fn poll(&mut self) -> std::io::Result<Option<rhoscope::source::Event>> {
+        self.0 += 1;
+        match self.0 {
+            1 => Ok(Some(rhoscope::source::Event::Data(
+                "time,displacement\n0.0,1.0\n0.001,0.9\n"
+                    .as_bytes()
+                    .to_vec(),
+            ))),
+            _ => panic!("an invented fault in the data thread"),
+        }
+    }
+    fn wait(&mut self, max: Duration) {
+        std::thread::sleep(max);
+    }
+}
+
+#[test]
+fn a_panic_in_the_data_thread_ends_the_dashboard_with_101() {
+    let (tx, rx) = sync_channel(16);
+    let feed = Feed::spawn(
+        Faulty(0),
+        Settings::default(),
+        tx,
+        Instant::now(),
+        Duration::from_millis(10),
+        Box::new(|_| {}),
+    );
+    let mut term = Terminal::new(TestBackend::new(80, 24)).unwrap();
+    let mut state = AppState::new(Config::default());
+    let t = Instant::now();
+    // The loop ends by itself: no key, no signal.
+    run(
+        &mut term,
+        &mut state,
+        &rx,
+        &rhoscope::app::stopper::StopHandle::none(),
+        Pacing::default(),
+        &mut rhoscope::ui::render,
+    )
+    .unwrap();
+    feed.stop();
+    assert!(t.elapsed() < Duration::from_secs(10), "{:?}", t.elapsed());
+    assert_eq!(state.rows, 2, "the rows before the fault were shown");
+    let fatal = state.fatal.clone().unwrap_or_default();
+    assert!(
+        fatal.contains("data thread") && fatal.contains("an invented fault"),
+        "{fatal}"
+    );
+    assert_eq!(rhoscope::commands::watch::exit_code(&state), 101);
+}

@@ -87,7 +87,7 @@ impl Feed {
     where
         S: Source + Send + 'static,
     {
-        let worker = Worker::spawn(move |flag| {
+        let worker = Worker::spawn_vital("the data thread", tx.clone(), move |flag| {
             let mut pipeline = Pipeline::new(&settings);
             let mut out = Outlet {
                 tx,

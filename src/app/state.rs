@@ -130,6 +130,11 @@ pub struct AppState {
     pub dirty: bool,
     /// The loop should end.
     pub quit: bool,
+    /// It ends for a signal or a closed terminal: every view leaves, not only
+    /// this one.
+    pub leave_all: bool,
+    /// Why a thread the dashboard needs failed, when one did.
+    pub fatal: Option<String>,
     /// Esc with no dialog open leaves the dashboard (opened from the fleet view).
     pub esc_quits: bool,
 }
@@ -179,6 +184,8 @@ impl AppState {
             note: None,
             dirty: true,
             quit: false,
+            leave_all: false,
+            fatal: None,
             esc_quits: false,
         }
     }

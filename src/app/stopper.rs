@@ -74,7 +74,7 @@ impl Stopper {
     /// Start driving `actions` every `every`, reporting to the loop through `ui`.
     pub fn spawn(mut actions: Box<dyn StopActions>, ui: SyncSender<Msg>, every: Duration) -> Self {
         let (tx, rx) = mpsc::channel::<Alarm>();
-        let worker = Worker::spawn(move |flag| {
+        let worker = Worker::spawn_vital("the stop actions' thread", ui.clone(), move |flag| {
             let mut out = Outbox::new(ui);
             let mut senders_gone = false;
             while !flag.load(Ordering::Relaxed) {

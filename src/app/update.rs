@@ -46,6 +46,10 @@ pub enum Msg {
     },
     /// A termination signal arrived (name, e.g. `SIGHUP`).
     Signal(&'static str),
+    /// The terminal's input ended or failed (the terminal closed).
+    HangUp,
+    /// A thread the dashboard needs (data, stop actions) failed: leave.
+    Fatal(String),
 }
 
 /// What the event loop must do after an update.
@@ -134,6 +138,20 @@ impl AppState {
             Msg::Signal(name) => {
                 self.note = Some(format!("{name} received: leaving"));
                 self.quit = true;
+                self.leave_all = true;
+                fx.push(Effect::Quit);
+            }
+            Msg::Fatal(text) => {
+                self.note = Some(format!("{text}; leaving"));
+                self.fatal = Some(text);
+                self.quit = true;
+                self.leave_all = true;
+                fx.push(Effect::Quit);
+            }
+            Msg::HangUp => {
+                self.note = Some("the terminal closed: leaving".into());
+                self.quit = true;
+                self.leave_all = true;
                 fx.push(Effect::Quit);
             }
         }

@@ -3,6 +3,7 @@
 //! feeding one channel, runs the dashboard loop, restores the terminal and
 //! prints a one-line summary.
 
+use std::io::Write;
 use std::path::Path;
 use std::sync::mpsc::sync_channel;
 use std::sync::{Arc, Mutex};
@@ -25,6 +26,8 @@ use crate::tui;
 
 /// Exit code when a stop action failed (as `guard`).
 const EXIT_ACTION_FAILED: i32 = 4;
+/// Exit code when a thread the dashboard needs panicked (Rust's code for a panic).
+pub const EXIT_THREAD_FAILED: i32 = 101;
 
 /// Plain sentences for the confirmation dialog: exactly what will be done.
 pub fn describe_actions(cfg: &EscalationConfig) -> Vec<String> {
@@ -187,6 +190,11 @@ fn watch(
     ticker.stop();
     feed.stop();
     stopper.stop();
+    if state.leave_all || result.is_err() {
+        // A signal, a closed terminal or one that cannot be drawn on: a view
+        // this one was opened from leaves too.
+        tui::set_leaving();
+    }
     result.context("cannot draw on the terminal")?;
 
     let stop = match &state.stop {
@@ -198,19 +206,33 @@ fn watch(
             report.join("; ")
         ),
     };
-    println!(
+    // The terminal may be gone (a hang-up): a summary that cannot be written is dropped.
+    let mut out = std::io::stdout();
+    let _ = writeln!(
+        out,
         "rhoscope watch: {} rows of {}; state {}; {stop}",
         state.rows,
         args.file.display(),
         crate::ui::theme::state_word(state.level)
     );
     if let Some(n) = &state.note {
-        println!("rhoscope watch: {n}");
+        let _ = writeln!(out, "rhoscope watch: {n}");
     }
-    Ok(match (&state.stop, state.level) {
-        (StopState::Done { ok: false, .. }, _) => EXIT_ACTION_FAILED,
-        (_, Level::Ok) => 0,
-        (_, Level::Warning) => 1,
-        (_, Level::Critical) => 2,
-    })
+    if let Some(f) = &state.fatal {
+        let _ = writeln!(std::io::stderr(), "rhoscope watch: {f}");
+    }
+    Ok(exit_code(&state))
+}
+
+/// The exit code of a dashboard session: [`EXIT_THREAD_FAILED`] when a
+/// thread it needs failed, [`EXIT_ACTION_FAILED`] when a stop action did,
+/// else the worst level seen.
+pub fn exit_code(state: &AppState) -> i32 {
+    match (&state.fatal, &state.stop, state.level) {
+        (Some(_), _, _) => EXIT_THREAD_FAILED,
+        (_, StopState::Done { ok: false, .. }, _) => EXIT_ACTION_FAILED,
+        (_, _, Level::Ok) => 0,
+        (_, _, Level::Warning) => 1,
+        (_, _, Level::Critical) => 2,
+    }
 }

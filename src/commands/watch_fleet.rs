@@ -4,6 +4,7 @@
 //! the fleet view for the selected run's dashboard (the usual single-run
 //! `watch`, which comes back on Esc or q) while the fleet goes on following.
 
+use std::io::Write;
 use std::path::PathBuf;
 use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::mpsc::{RecvTimeoutError, sync_channel};
@@ -112,7 +113,12 @@ pub fn run(args: WatchArgs) -> anyhow::Result<i32> {
     let result = fleet_loop(&args, &mut view, &snap);
     follow.stop();
     result?;
-    println!("rhoscope watch: {} runs followed", view.rows.len());
+    // The terminal may be gone (a hang-up): a summary that cannot be written is dropped.
+    let _ = writeln!(
+        std::io::stdout(),
+        "rhoscope watch: {} runs followed",
+        view.rows.len()
+    );
     Ok(0)
 }
 
@@ -133,7 +139,10 @@ fn fleet_loop(args: &WatchArgs, view: &mut FleetView, snap: &Snapshot) -> anyhow
                     FleetEffect::Quit => quit = true,
                     FleetEffect::None => {}
                 },
-                Ok(Msg::Signal(_)) => quit = true,
+                Ok(Msg::Signal(_) | Msg::HangUp) => {
+                    tui::set_leaving();
+                    quit = true;
+                }
                 Ok(_) => view.dirty = true,
                 Err(RecvTimeoutError::Timeout) => {}
                 Err(RecvTimeoutError::Disconnected) => quit = true,
@@ -169,5 +178,9 @@ fn fleet_loop(args: &WatchArgs, view: &mut FleetView, snap: &Snapshot) -> anyhow
             Ok(_) => Some(format!("back from {}", path.display())),
             Err(e) => Some(format!("cannot watch {}: {e:#}", path.display())),
         };
+        if tui::leaving() {
+            // The dashboard ended for a signal or a closed terminal: so does this view.
+            return Ok(());
+        }
     }
 }
