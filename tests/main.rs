@@ -6,6 +6,7 @@ mod demo_sim;
 mod detect_checks;
 mod detect_eval;
 mod evaluate_labels;
+mod event_log;
 mod external;
 mod fleet_cli;
 mod guard;

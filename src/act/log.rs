@@ -1,6 +1,10 @@
 //! The event log: every alarm, action and note as one JSON object per line
-//! (JSON Lines), flushed as it is written so that nothing is lost if the job is
-//! killed, and echoed as one line on stderr.
+//! (JSON Lines), and echoed as one line on stderr. The file is opened with
+//! `O_APPEND` and each record, newline included, goes out in one `write()`, so
+//! that many guards appending to one shared log never interleave inside a
+//! line (POSIX appends each such write whole at the end of a regular file on a
+//! local filesystem; network filesystems may not honour `O_APPEND` across
+//! hosts). Nothing is buffered, so nothing is lost if the job is killed.
 
 use std::fs::{File, OpenOptions};
 use std::io::{self, Write};
@@ -101,10 +105,7 @@ impl EventLog {
         let Some(f) = self.file.as_mut() else {
             return;
         };
-        let res = serde_json::to_string(r)
-            .map_err(io::Error::other)
-            .and_then(|s| writeln!(f, "{s}"))
-            .and_then(|_| f.flush());
+        let res = record_line(r).and_then(|line| f.write_all(line.as_bytes()));
         if let Err(e) = res
             && !self.write_failed
         {
@@ -157,6 +158,13 @@ impl EventLog {
             outcome: None,
         });
     }
+}
+
+/// A record as one JSON line, newline included: the whole of one `write()`.
+pub fn record_line(r: &Record) -> io::Result<String> {
+    let mut line = serde_json::to_string(r).map_err(io::Error::other)?;
+    line.push('\n');
+    Ok(line)
 }
 
 /// The one-line stderr form of a record.
