@@ -12,6 +12,7 @@ mod fleet_cli;
 mod guard;
 mod hostile_paths;
 mod limits_cli;
+mod metrics_abuse;
 mod parse_formats;
 mod parse_props;
 mod parse_shapes;

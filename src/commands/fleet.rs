@@ -3,8 +3,8 @@
 //! following), and publishes their state as metrics (file and/or HTTP).
 
 use std::io::Write;
+use std::sync::Arc;
 use std::sync::atomic::{AtomicBool, Ordering};
-use std::sync::{Arc, Mutex};
 use std::time::{Duration, Instant};
 
 use anyhow::{Context as _, bail};
@@ -130,7 +130,7 @@ pub fn run(args: FleetArgs) -> anyhow::Result<i32> {
     ] {
         signal_hook::flag::register(sig, Arc::clone(&stop)).context("cannot listen for signals")?;
     }
-    let shared: metrics::serve::Shared = Arc::new(Mutex::new(String::new()));
+    let shared: metrics::serve::Shared = Arc::default();
     let server = match listen {
         Some(addr) => {
             let s = metrics::serve::Server::start(addr, Arc::clone(&shared))?;
@@ -165,9 +165,7 @@ pub fn run(args: FleetArgs) -> anyhow::Result<i32> {
             {
                 eprintln!("rhoscope fleet: {e}");
             }
-            if let Ok(mut s) = shared.lock() {
-                *s = text;
-            }
+            shared.set(text);
         }
         fleet.wait(Duration::from_millis(500), Duration::from_millis(50));
     }

@@ -7,6 +7,7 @@
 //! `_bytes`, `_ratio`), `_total` on counters; every run is told apart by its
 //! `run` label.
 
+pub mod request;
 pub mod serve;
 
 use std::fmt::Write as _;
