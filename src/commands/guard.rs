@@ -160,11 +160,8 @@ pub fn check_action_outputs(
 /// Run `rhoscope guard`; returns the exit code.
 pub fn run(args: GuardArgs) -> anyhow::Result<i32> {
     let settings = Settings::load(&args.input, &args.file)?;
-    if args.file.is_dir() {
-        bail!(
-            "'{}' is a directory, not a history file",
-            args.file.display()
-        );
+    if let Some(why) = crate::source::not_followable(&args.file) {
+        bail!("{why}");
     }
     if args.file.exists() {
         std::fs::File::open(&args.file)

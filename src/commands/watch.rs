@@ -78,11 +78,8 @@ pub fn run(args: WatchArgs) -> anyhow::Result<i32> {
     if super::watch_fleet::is_fleet(&args) {
         return super::watch_fleet::run(args);
     }
-    if args.file.is_dir() {
-        bail!(
-            "'{}' is a directory, not a history file",
-            args.file.display()
-        );
+    if let Some(why) = crate::source::not_followable(&args.file) {
+        bail!("{why}");
     }
     if let Some(t) = args.end_time
         && !(t.is_finite() && t > 0.0)

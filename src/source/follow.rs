@@ -1,5 +1,9 @@
 //! Follow one growing file by name. Every poll reads what was appended since the
-//! saved offset (positioned reads, so the file's own state is never touched).
+//! saved offset (positioned reads, so the file's own state is never touched),
+//! and every read that finds new bytes checks that the bytes just before the
+//! offset are still those read last: a file rewritten in place, or truncated
+//! and grown again past the offset, is caught before any of its bytes is taken
+//! as a continuation, whenever the periodic check would have come.
 //! Once per poll interval, or when a notification hints at a change, the name is
 //! opened afresh — a fresh open makes network filesystems revalidate cached
 //! attributes — and compared with what is held: device and inode, size against
@@ -11,11 +15,13 @@
 //! on cluster filesystems they can be stale for minutes.
 
 use std::collections::VecDeque;
-use std::fs::File;
+use std::fs::{File, OpenOptions};
 use std::io;
-use std::os::unix::fs::{FileExt, MetadataExt};
+use std::os::unix::fs::{FileExt, FileTypeExt, MetadataExt, OpenOptionsExt};
 use std::path::{Path, PathBuf};
 use std::time::{Duration, Instant};
+
+use nix::fcntl::OFlag;
 
 use super::hint::Hint;
 use super::{Event, RestartReason, Source, strip_nul};
@@ -26,6 +32,45 @@ const HEAD_BYTES: usize = 512;
 const TAIL_BYTES: usize = 64;
 /// Smallest read; reads double while they come back full, up to the chunk size.
 const MIN_READ_BYTES: usize = 4096;
+
+/// What kind of thing stands at `path` when it is not a regular file that can
+/// be followed (`None` for a regular file, or nothing there yet). Does not
+/// open anything, so a named pipe never blocks the caller.
+pub fn not_followable(path: &Path) -> Option<String> {
+    let meta = std::fs::metadata(path).ok()?;
+    let t = meta.file_type();
+    let kind = if t.is_fifo() {
+        "a named pipe (FIFO)"
+    } else if t.is_socket() {
+        "a socket"
+    } else if t.is_char_device() || t.is_block_device() {
+        "a device"
+    } else if t.is_dir() {
+        "a directory"
+    } else {
+        return None;
+    };
+    Some(format!(
+        "'{}' is {kind}, not a history file: rhoscope follows regular files, reading them \
+         by position without consuming them; let the solver write its history to a file",
+        path.display()
+    ))
+}
+
+/// Open `path` for reading without blocking (a named pipe would wait for a
+/// writer) and refuse anything but a regular file.
+fn open_regular(path: &Path) -> io::Result<File> {
+    let file = OpenOptions::new()
+        .read(true)
+        .custom_flags(OFlag::O_NONBLOCK.bits())
+        .open(path)?;
+    if !file.metadata()?.is_file() {
+        let why = not_followable(path)
+            .unwrap_or_else(|| format!("'{}' is not a regular file", path.display()));
+        return Err(io::Error::new(io::ErrorKind::InvalidInput, why));
+    }
+    Ok(file)
+}
 
 /// How a [`Follower`] polls.
 #[derive(Debug, Clone, PartialEq)]
@@ -126,11 +171,16 @@ impl Follower {
         self.file = Some(file);
         self.id = Some(id);
         if let Some(r) = restart {
-            self.offset = 0;
-            self.head.clear();
-            self.tail.clear();
-            self.pending.push_back(Event::Restart(r));
+            self.restart(r);
         }
+    }
+
+    /// Forget what was read and start the file again from its beginning.
+    fn restart(&mut self, reason: RestartReason) {
+        self.offset = 0;
+        self.head.clear();
+        self.tail.clear();
+        self.pending.push_back(Event::Restart(reason));
     }
 
     /// True when `file` holds `expect` at `at`.
@@ -138,7 +188,10 @@ impl Follower {
         if expect.is_empty() {
             return Ok(true);
         }
-        let mut got = vec![0u8; expect.len()];
+        let mut space = [0u8; HEAD_BYTES];
+        let Some(got) = space.get_mut(..expect.len()) else {
+            return Ok(false);
+        };
         let mut done = 0;
         while done < got.len() {
             match file.read_at(&mut got[done..], at + done as u64) {
@@ -151,18 +204,23 @@ impl Follower {
         Ok(got == expect)
     }
 
+    /// True when `file` (of `size` bytes) still holds what was read: the
+    /// first bytes and the bytes just before the offset.
     fn same_content(&self, file: &File, size: u64) -> io::Result<bool> {
+        Ok(size >= self.offset && Self::holds(file, 0, &self.head)? && self.tail_holds(file)?)
+    }
+
+    /// True when the bytes just before the offset are still those read.
+    fn tail_holds(&self, file: &File) -> io::Result<bool> {
         let tail_at = self.offset - self.tail.len() as u64;
-        Ok(size >= self.offset
-            && Self::holds(file, 0, &self.head)?
-            && Self::holds(file, tail_at, &self.tail)?)
+        Self::holds(file, tail_at, &self.tail)
     }
 
     /// Open the name afresh and decide what became of the file.
     fn check(&mut self) -> io::Result<()> {
         self.hinted = false;
         self.last_check = Some(Instant::now());
-        let file = match File::open(&self.path) {
+        let file = match open_regular(&self.path) {
             Ok(f) => f,
             Err(e) if e.kind() == io::ErrorKind::NotFound => {
                 self.start_size.get_or_insert(0);
@@ -201,7 +259,7 @@ impl Follower {
             Some(_) => {
                 if size < self.offset {
                     self.adopt(file, id, Some(RestartReason::Truncated));
-                } else if !Self::holds(&file, 0, &self.head)? {
+                } else if !Self::holds(&file, 0, &self.head)? || !self.tail_holds(&file)? {
                     self.adopt(file, id, Some(RestartReason::Rewritten));
                 } else {
                     self.adopt(file, id, None);
@@ -235,12 +293,15 @@ impl Follower {
         if n == 0 {
             // At the end: a size below the offset means truncation in place.
             if file.metadata()?.len() < self.offset {
-                self.offset = 0;
-                self.head.clear();
-                self.tail.clear();
-                self.pending
-                    .push_back(Event::Restart(RestartReason::Truncated));
+                self.restart(RestartReason::Truncated);
             }
+            return Ok(None);
+        }
+        // New bytes: before taking them as a continuation, the bytes before
+        // the offset must be those read last. Checked after the read, so a
+        // rewrite at any moment before it is seen here.
+        if !self.tail_holds(file)? {
+            self.restart(RestartReason::Rewritten);
             return Ok(None);
         }
         buf.truncate(n);

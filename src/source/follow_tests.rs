@@ -43,6 +43,16 @@ fn append(path: &Path, bytes: &[u8]) {
     f.write_all(bytes).unwrap();
 }
 
+/// Cut the file to nothing in place (same inode), as `> file` does.
+fn truncate(path: &Path) {
+    OpenOptions::new()
+        .write(true)
+        .open(path)
+        .unwrap()
+        .set_len(0)
+        .unwrap();
+}
+
 fn data(b: &[u8]) -> Event {
     Event::Data(b.to_vec())
 }
@@ -67,12 +77,7 @@ fn truncation_in_place_restarts_from_the_start() {
     append(&p, b"t,e\n0,1\n1,2\n2,3\n");
     let mut f = Follower::new(&p, cfg());
     drain(&mut f);
-    OpenOptions::new()
-        .write(true)
-        .open(&p)
-        .unwrap()
-        .set_len(0)
-        .unwrap();
+    truncate(&p);
     append(&p, b"t,e\n");
     assert_eq!(
         drain(&mut f),
@@ -269,4 +274,122 @@ fn a_nudge_reopens_the_name_before_the_periodic_check() {
         drain(&mut f),
         vec![Event::Restart(RestartReason::Replaced), data(b"t,e\n5,6\n")]
     );
+}
+
+/// `rows` lines of a history whose values depend on `seed`, so that two
+/// runs differ in every line after the header.
+fn rows(rows: usize, seed: u32) -> Vec<u8> {
+    let mut v = b"time,x\n".to_vec();
+    for i in 0..rows {
+        v.extend_from_slice(format!("{i},{}\n", i as u32 * 7 + seed).as_bytes());
+    }
+    v
+}
+
+/// A follower whose periodic check is far away (an hour), with or without
+/// notifications: only the continuity check can catch a rewrite in time.
+fn slow(notify: bool) -> FollowConfig {
+    FollowConfig {
+        poll_interval: Duration::from_secs(3600),
+        notify,
+        chunk_bytes: 1 << 16,
+    }
+}
+
+/// Everything the follower hands out until quiet, with notifications waited for.
+fn drain_waiting(f: &mut Follower) -> Vec<Event> {
+    f.wait(Duration::from_millis(200));
+    drain(f)
+}
+
+/// Events in a short form for assertions: `restart: WHY`, `LINES lines`.
+fn summary(events: &[Event]) -> Vec<String> {
+    events
+        .iter()
+        .map(|e| match e {
+            Event::Data(d) => format!("{} lines", d.iter().filter(|&&b| b == b'\n').count()),
+            Event::Restart(r) => format!("restart: {}", r.describe()),
+            other => format!("{other:?}"),
+        })
+        .collect()
+}
+
+/// Rewritten in place (same inode) past the old offset, or truncated and
+/// regrown past it: one restart, then the new file whole, never a splice.
+fn rewrite_is_read_once(notify: bool, truncate_first: bool) {
+    let dir = tempfile::tempdir().unwrap();
+    let p = dir.path().join("run.csv");
+    fs::write(&p, rows(1000, 1)).unwrap();
+    let mut f = Follower::new(&p, slow(notify));
+    drain_waiting(&mut f);
+    let new = rows(1500, 2);
+    if truncate_first {
+        truncate(&p);
+        append(&p, &new);
+    } else {
+        fs::write(&p, &new).unwrap();
+    }
+    let got = drain_waiting(&mut f);
+    let case = format!("notify {notify}, truncated first {truncate_first}");
+    assert_eq!(
+        summary(&got),
+        vec!["restart: file rewritten from its start", "1501 lines"],
+        "{case}: 1,500 rows and the header, once"
+    );
+    assert!(got[1] == Event::Data(new), "{case}: the new bytes exactly");
+}
+
+#[test]
+fn a_rewrite_in_place_is_caught_before_its_bytes_are_read_without_notifications() {
+    rewrite_is_read_once(false, false);
+    rewrite_is_read_once(false, true);
+}
+
+#[test]
+fn a_rewrite_in_place_is_caught_before_its_bytes_are_read_with_notifications() {
+    rewrite_is_read_once(true, false);
+    rewrite_is_read_once(true, true);
+}
+
+#[test]
+fn a_rewrite_with_the_same_bytes_up_to_the_offset_continues() {
+    // A deterministic rerun writes the same bytes again: what follows the
+    // offset is then its true continuation, read once.
+    let dir = tempfile::tempdir().unwrap();
+    let p = dir.path().join("run.csv");
+    let all = rows(1500, 1);
+    fs::write(&p, &all[..4000]).unwrap();
+    let mut f = Follower::new(&p, slow(false));
+    drain(&mut f);
+    fs::write(&p, &all).unwrap();
+    let got = drain(&mut f);
+    assert_eq!(
+        summary(&got),
+        vec![format!(
+            "{} lines",
+            all[4000..].iter().filter(|&&b| b == b'\n').count()
+        )]
+    );
+    assert!(got[0] == data(&all[4000..]));
+}
+
+#[test]
+fn a_rewrite_that_has_not_grown_yet_is_caught_by_the_periodic_check() {
+    let dir = tempfile::tempdir().unwrap();
+    let p = dir.path().join("run.csv");
+    let old = rows(100, 1);
+    fs::write(&p, &old).unwrap();
+    let mut f = Follower::new(&p, cfg());
+    drain(&mut f);
+    // Same size, same first bytes, other rows at the end.
+    let mut new = old.clone();
+    let at = new.len() - 5;
+    new[at] = b'9';
+    fs::write(&p, &new).unwrap();
+    let got = drain(&mut f);
+    assert_eq!(
+        summary(&got),
+        vec!["restart: file rewritten from its start", "101 lines"]
+    );
+    assert!(got[1] == data(&new));
 }

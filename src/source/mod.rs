@@ -11,7 +11,7 @@ mod follow;
 mod hint;
 
 pub use fake::{Scripted, Step};
-pub use follow::{FollowConfig, Follower};
+pub use follow::{FollowConfig, Follower, not_followable};
 
 use std::io;
 use std::sync::Arc;
