@@ -50,6 +50,15 @@ pub struct ScanReport {
     /// How the columns of the last segment were found.
     #[serde(default)]
     pub table: TableEntry,
+    /// The configuration file applied (named with `--config`, or found beside
+    /// the history), if any: it can change roles, thresholds and the format.
+    #[serde(default)]
+    pub config: Option<String>,
+    /// Things the reader of the report should know about the scan itself
+    /// (a configuration found beside the history, a file that shrank while it
+    /// was read).
+    #[serde(default)]
+    pub notes: Vec<String>,
 }
 
 /// How the columns were found: where their names came from, what the reader
@@ -253,6 +262,8 @@ impl ReportBuilder {
             skipped: self.skipped,
             text_lines_outside_table: self.outside,
             table: self.table,
+            config: None,
+            notes: Vec::new(),
         }
     }
 }

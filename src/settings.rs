@@ -68,6 +68,16 @@ struct ThresholdSection {
     scheme: Option<String>,
 }
 
+/// The note that says a configuration beside the history is in use: it can
+/// change how the file is read and what alarms, so it is never silent.
+pub fn beside_note(path: &Path) -> String {
+    format!(
+        "using the configuration '{}' found beside the history (roles, thresholds, format); \
+         --no-config ignores it",
+        path.display()
+    )
+}
+
 impl Settings {
     /// Settings for reading `history` with these flags: the named `--config`, else
     /// `rhoscope.toml` beside the history (unless `--no-config`), then the flags.
@@ -89,6 +99,9 @@ impl Settings {
                 .with_context(|| format!("cannot read configuration {}", path.display()))?;
             s.apply_toml(&text, named)
                 .with_context(|| format!("configuration {}", path.display()))?;
+            if !named {
+                s.notes.insert(0, beside_note(&path));
+            }
             s.config_file = Some(path);
         }
         s.apply_flags(input)?;

@@ -8,6 +8,7 @@ mod detect_eval;
 mod evaluate_labels;
 mod event_log;
 mod external;
+mod file_faults;
 mod fleet_cli;
 mod guard;
 mod hostile_paths;

@@ -27,10 +27,18 @@ pub fn run(args: ScanArgs) -> anyhow::Result<i32> {
         None => None,
     };
     let progress = std::io::stderr().is_terminal();
-    let report = match plot {
+    let mut report = match plot {
         None => scan_path(&args.file, &settings, progress)?,
         Some(target) => super::scan_plot::scan_and_draw(&args.file, &settings, progress, target)?,
     };
+    for note in &report.notes {
+        eprintln!("rhoscope: {note}");
+    }
+    report.config = settings
+        .config_file
+        .as_ref()
+        .map(|p| p.display().to_string());
+    report.notes.splice(0..0, settings.notes.iter().cloned());
     let mut text = if args.json {
         serde_json::to_vec(&report).context("cannot write the report")?
     } else {
@@ -91,6 +99,7 @@ pub fn scan_path_with(
 ) -> anyhow::Result<ScanReport> {
     let mut pipeline = Pipeline::new(settings);
     let mut builder = ReportBuilder::default();
+    let size_at_start = std::fs::metadata(path).map(|m| m.len()).ok();
     let bar = progress_bar(path, progress);
     let mut on_read = |read: u64, _size: u64| {
         if let Some(b) = &bar {
@@ -132,5 +141,20 @@ pub fn scan_path_with(
         bail!("{}: no data row: {what}{skipped}", path.display());
     }
     let file = path.display().to_string();
-    Ok(builder.finish(&file, pipeline.rows(), pipeline.skipped(), pipeline.lines()))
+    let mut report = builder.finish(&file, pipeline.rows(), pipeline.skipped(), pipeline.lines());
+    if let Some(n) = size_at_start.and_then(|size| shrank_note(size, bytes)) {
+        report.notes.push(n);
+    }
+    Ok(report)
+}
+
+/// The note for a file that held `size_at_start` bytes when the scan began but
+/// gave only `read` bytes: it was truncated or replaced while being read.
+pub fn shrank_note(size_at_start: u64, read: u64) -> Option<String> {
+    (read < size_at_start).then(|| {
+        format!(
+            "file shrank during scan: {size_at_start} bytes when the scan began, {read} read; \
+             the report covers only what was read (was the file truncated or rewritten?)"
+        )
+    })
 }
