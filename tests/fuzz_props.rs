@@ -5,8 +5,8 @@
 use proptest::prelude::*;
 
 use super::properties::{
-    config_is_accepted_or_refused, pipeline_alarms_the_same_however_cut,
-    reader_reads_the_same_however_cut,
+    chart_fits_the_unit_square, config_is_accepted_or_refused,
+    pipeline_alarms_the_same_however_cut, reader_reads_the_same_however_cut,
 };
 
 /// Bytes that look like a history often enough to reach the roles and the
@@ -56,6 +56,29 @@ fn config_like() -> impl Strategy<Value = String> {
     proptest::collection::vec(line, 0..12).prop_map(|l| l.concat())
 }
 
+/// Values a blow-up writes, and ordinary ones, as little-endian f64 bytes.
+fn plotted_values() -> impl Strategy<Value = Vec<u8>> {
+    let value = prop_oneof![
+        Just(f64::NAN),
+        Just(f64::INFINITY),
+        Just(f64::NEG_INFINITY),
+        Just(f64::MAX),
+        Just(-f64::MAX),
+        Just(1e308),
+        Just(f64::MIN_POSITIVE / 4.0),
+        Just(0.0),
+        -1e6f64..1e6,
+        any::<f64>(),
+    ];
+    (any::<u8>(), proptest::collection::vec(value, 0..200)).prop_map(|(shape, v)| {
+        let mut bytes = vec![shape];
+        for x in v {
+            bytes.extend_from_slice(&x.to_le_bytes());
+        }
+        bytes
+    })
+}
+
 proptest! {
     #![proptest_config(ProptestConfig::with_cases(300))]
 
@@ -81,5 +104,10 @@ proptest! {
         text in prop_oneof![config_like(), "\\PC{0,200}"],
     ) {
         config_is_accepted_or_refused(text.as_bytes());
+    }
+
+    #[test]
+    fn chart_transform_lands_any_values_in_the_unit_square(bytes in plotted_values()) {
+        chart_fits_the_unit_square(&bytes);
     }
 }

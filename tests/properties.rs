@@ -137,3 +137,66 @@ pub fn config_is_accepted_or_refused(data: &[u8]) {
         }
     }
 }
+
+/// f64 values from raw bytes, eight at a time (every bit pattern: NaN,
+/// ±inf, subnormals, ±1e308).
+pub fn floats(data: &[u8]) -> Vec<f64> {
+    data.chunks_exact(8)
+        .map(|c| f64::from_le_bytes(c.try_into().unwrap_or([0; 8])))
+        .collect()
+}
+
+/// The chart transform (`rhoscope::scale::fit`) takes any values into the
+/// unit square: every coordinate finite in [0, 1], the labels finite, the
+/// order of y values kept, and no answer only when no y value exists.
+pub fn chart_fits_the_unit_square(data: &[u8]) {
+    let Some((&shape, rest)) = data.split_first() else {
+        return;
+    };
+    let v = floats(rest);
+    let n_series = usize::from(shape % 3) + 1;
+    let (window, values) = v.split_at(v.len().min(3));
+    let x = (
+        window.first().copied().unwrap_or(0.0),
+        window.get(1).copied().unwrap_or(1.0),
+    );
+    let reference = window.get(2).copied().filter(|_| shape & 4 != 0);
+    let decades = [0.0, 3.0, 6.0, 300.0][usize::from(shape >> 3) % 4];
+    let points: Vec<(f64, f64)> = values.chunks_exact(2).map(|p| (p[0], p[1])).collect();
+    let per = points.len().div_ceil(n_series).max(1);
+    let series: Vec<&[(f64, f64)]> = points.chunks(per).collect();
+    let any_y = points.iter().any(|p| !p.1.is_nan());
+    let Some(fitted) = rhoscope::scale::fit(&series, reference, x, decades) else {
+        // Only a log axis can leave every value out; fit never picks one
+        // unless all values are positive, so no answer means no value.
+        assert!(!any_y, "values {points:?} gave no chart");
+        return;
+    };
+    let inside = |u: f64| u.is_finite() && (0.0..=1.0).contains(&u);
+    let placed = |y: f64| {
+        rhoscope::scale::tame(y)
+            .and_then(|t| fitted.scale.map(t))
+            .is_some()
+    };
+    for (s, out) in series.iter().zip(&fitted.series) {
+        let ys: Vec<f64> = s.iter().map(|p| p.1).filter(|&y| placed(y)).collect();
+        assert_eq!(out.len(), ys.len(), "every placed value is drawn");
+        for &(ux, uy) in out {
+            assert!(inside(ux) && inside(uy), "({ux}, {uy}) from {s:?}");
+        }
+        // Sorted by value, the heights never go down.
+        let mut pairs: Vec<(f64, f64)> = ys.into_iter().zip(out.iter().map(|o| o.1)).collect();
+        pairs.sort_by(|a, b| a.0.total_cmp(&b.0));
+        for w in pairs.windows(2) {
+            assert!(w[0].1 <= w[1].1, "order lost: {:?} then {:?}", w[0], w[1]);
+        }
+    }
+    if let Some(r) = fitted.reference {
+        assert!(inside(r), "reference at {r}");
+    }
+    assert!(
+        fitted.y_labels.iter().all(|l| l.is_finite()),
+        "{:?}",
+        fitted.y_labels
+    );
+}
