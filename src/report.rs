@@ -9,7 +9,7 @@ use crate::alarm::Alarm;
 use crate::finding::Level;
 use crate::parse::roles::RoleMap;
 use crate::parse::{NamesFrom, Schema, SegmentReason, SkipReason};
-use crate::pipeline::sink::Sink;
+use crate::pipeline::sink::{Note, Sink};
 
 /// How many skipped lines are listed one by one (all are counted).
 pub const MAX_LISTED_SKIPS: usize = 100;
@@ -164,6 +164,7 @@ pub struct ReportBuilder {
     skipped: Vec<SkipEntry>,
     outside: u64,
     table: TableEntry,
+    notes: Vec<String>,
 }
 
 impl Sink for ReportBuilder {
@@ -209,6 +210,12 @@ impl Sink for ReportBuilder {
                 line,
                 reason: reason.to_string(),
             });
+        }
+    }
+
+    fn note(&mut self, note: &Note) {
+        if let Note::Shrank { .. } = note {
+            self.notes.push(note.describe());
         }
     }
 }
@@ -263,7 +270,7 @@ impl ReportBuilder {
             text_lines_outside_table: self.outside,
             table: self.table,
             config: None,
-            notes: Vec::new(),
+            notes: self.notes,
         }
     }
 }

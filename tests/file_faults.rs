@@ -6,9 +6,11 @@ use std::path::Path;
 use std::time::Duration;
 
 use assert_cmd::Command;
-use rhoscope::commands::scan::shrank_note;
+use rhoscope::alarm::Alarm;
 use rhoscope::pipeline::Pipeline;
 use rhoscope::pipeline::drive::{FILE_SLICE_BYTES, drive_file};
+use rhoscope::pipeline::sink::{Note, Sink};
+use rhoscope::report::ReportBuilder;
 use rhoscope::settings::Settings;
 
 const BIN: &str = env!("CARGO_BIN_EXE_rhoscope");
@@ -36,19 +38,35 @@ fn a_named_pipe_is_refused_at_once_not_waited_on() {
     }
 }
 
+/// Notes a reading was told, beside nothing else.
+#[derive(Default)]
+struct Notes(Vec<Note>);
+
+impl Sink for Notes {
+    fn alarm(&mut self, _a: &Alarm) {}
+    fn note(&mut self, note: &Note) {
+        self.0.push(note.clone());
+    }
+}
+
+fn history(rows: usize) -> String {
+    let mut text = String::from("time,x\n");
+    for i in 0..rows {
+        text.push_str(&format!("{i},{}\n", i % 13));
+    }
+    text
+}
+
 #[test]
 fn a_file_that_shrinks_during_a_scan_is_noted() {
     let dir = tempfile::tempdir().unwrap();
     let p = dir.path().join("h.csv");
-    let mut text = String::from("time,x\n");
     // Larger than one read (FILE_SLICE_BYTES), so the scan reads again after the cut.
-    for i in 0..300_000 {
-        text.push_str(&format!("{i},{}\n", i % 13));
-    }
+    let text = history(300_000);
     fs::write(&p, &text).unwrap();
     let size = text.len() as u64;
     let mut pipeline = Pipeline::new(&Settings::default());
-    let mut alarms = Vec::new();
+    let mut notes = Notes::default();
     let mut cut = false;
     // After the first read, someone truncates the file to a few lines.
     let mut on_read = |_: u64, _: u64| {
@@ -65,18 +83,42 @@ fn a_file_that_shrinks_during_a_scan_is_noted() {
     let read = drive_file(
         &p,
         &mut pipeline,
-        &mut alarms,
+        &mut notes,
         FILE_SLICE_BYTES,
         &mut on_read,
     )
     .unwrap();
     assert!(read < size, "{read} of {size}");
-    let note = shrank_note(size, read).unwrap();
-    assert!(note.contains("shrank during scan"), "{note}");
-    assert!(
-        shrank_note(size, size).is_none(),
-        "a whole read has no note"
+    assert_eq!(
+        notes.0,
+        [Note::Shrank {
+            size_at_start: size,
+            read
+        }]
     );
+    assert!(notes.0[0].describe().contains("shrank during scan"));
+
+    // The report carries it; a file read whole has no note.
+    let mut report = ReportBuilder::default();
+    report.note(&notes.0[0]);
+    let report = report.finish("h.csv", 1, 0, 1);
+    assert!(
+        report.notes[0].contains("shrank during scan"),
+        "{:?}",
+        report.notes
+    );
+    let mut whole = Notes::default();
+    fs::write(&p, &text).unwrap();
+    let mut pipeline = Pipeline::new(&Settings::default());
+    drive_file(
+        &p,
+        &mut pipeline,
+        &mut whole,
+        FILE_SLICE_BYTES,
+        &mut |_, _| {},
+    )
+    .unwrap();
+    assert!(whole.0.is_empty(), "{:?}", whole.0);
 }
 
 #[test]

@@ -99,7 +99,6 @@ pub fn scan_path_with(
 ) -> anyhow::Result<ScanReport> {
     let mut pipeline = Pipeline::new(settings);
     let mut builder = ReportBuilder::default();
-    let size_at_start = std::fs::metadata(path).map(|m| m.len()).ok();
     let bar = progress_bar(path, progress);
     let mut on_read = |read: u64, _size: u64| {
         if let Some(b) = &bar {
@@ -141,20 +140,5 @@ pub fn scan_path_with(
         bail!("{}: no data row: {what}{skipped}", path.display());
     }
     let file = path.display().to_string();
-    let mut report = builder.finish(&file, pipeline.rows(), pipeline.skipped(), pipeline.lines());
-    if let Some(n) = size_at_start.and_then(|size| shrank_note(size, bytes)) {
-        report.notes.push(n);
-    }
-    Ok(report)
-}
-
-/// The note for a file that held `size_at_start` bytes when the scan began but
-/// gave only `read` bytes: it was truncated or replaced while being read.
-pub fn shrank_note(size_at_start: u64, read: u64) -> Option<String> {
-    (read < size_at_start).then(|| {
-        format!(
-            "file shrank during scan: {size_at_start} bytes when the scan began, {read} read; \
-             the report covers only what was read (was the file truncated or rewritten?)"
-        )
-    })
+    Ok(builder.finish(&file, pipeline.rows(), pipeline.skipped(), pipeline.lines()))
 }

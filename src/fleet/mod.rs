@@ -239,7 +239,7 @@ impl Sink for RunRow {
             Note::Appeared => self.file = FileState::Reading,
             Note::Missing => self.file = FileState::Missing,
             Note::ReadError(e) => self.note = Some(e.clone()),
-            Note::Restarted(_) | Note::CaughtUp { .. } => {}
+            Note::Restarted(_) | Note::CaughtUp { .. } | Note::Shrank { .. } => {}
         }
     }
 

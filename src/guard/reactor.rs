@@ -114,7 +114,9 @@ impl Sink for Reactor<'_> {
                     ));
                 }
             }
-            Note::Appeared | Note::Missing | Note::ReadError(_) => self.log.note(&note.describe()),
+            Note::Appeared | Note::Missing | Note::ReadError(_) | Note::Shrank { .. } => {
+                self.log.note(&note.describe())
+            }
         }
     }
 

@@ -44,7 +44,8 @@ pub fn open_history(path: &Path) -> anyhow::Result<(File, u64)> {
 /// at a time, with a checkpoint after each slice and one after the end of the
 /// file. `on_read(read, size)` is called after each read (for a progress
 /// bar). A checkpoint that answers [`Flow::Stop`] ends the reading there.
-/// Returns the bytes read.
+/// A file that gives fewer bytes than it held when opened is told as
+/// [`Note::Shrank`] before the last checkpoint. Returns the bytes read.
 pub fn drive_file(
     path: &Path,
     pipeline: &mut Pipeline,
@@ -74,6 +75,12 @@ pub fn drive_file(
         on_read(total, size);
     }
     pipeline.finish(sink);
+    if total < size {
+        sink.note(&Note::Shrank {
+            size_at_start: size,
+            read: total,
+        });
+    }
     sink.checkpoint(None, pipeline);
     Ok(total)
 }

@@ -30,6 +30,9 @@ pub enum Note {
     /// Everything that was in the file when following began has been read;
     /// what follows is live. `lines` physical lines were read by then.
     CaughtUp { lines: u64 },
+    /// A plain file held `size_at_start` bytes when its reading began but
+    /// gave only `read`: it was truncated or replaced while being read.
+    Shrank { size_at_start: u64, read: u64 },
 }
 
 impl Note {
@@ -44,6 +47,13 @@ impl Note {
             }
             Note::ReadError(e) => format!("cannot read the file: {e}"),
             Note::CaughtUp { lines } => format!("caught up: {lines} lines read, following live"),
+            Note::Shrank {
+                size_at_start,
+                read,
+            } => format!(
+                "file shrank during scan: {size_at_start} bytes when the scan began, {read} read; \
+                 the report covers only what was read (was the file truncated or rewritten?)"
+            ),
         }
     }
 }

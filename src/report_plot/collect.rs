@@ -8,7 +8,7 @@ use crate::finding::Evidence;
 use crate::finding::Level;
 use crate::parse::roles::{EnergyTerm, Role, RoleMap};
 use crate::parse::{Schema, SegmentReason, SkipReason};
-use crate::pipeline::sink::{Flow, Progress, Sink};
+use crate::pipeline::sink::{Flow, Note, Progress, Sink};
 
 use super::envelope::Envelope;
 use super::{Marker, MarkerKind, PlotData, Series, TitleBlock};
@@ -41,6 +41,9 @@ impl Sink for Tee<'_> {
     fn skipped(&mut self, line: u64, reason: &SkipReason) {
         self.report.skipped(line, reason);
         self.plot.skipped(line, reason);
+    }
+    fn note(&mut self, note: &Note) {
+        self.report.note(note);
     }
     /// The detectors' estimates are sampled for the growth and balance panels.
     fn checkpoint(&mut self, arrival_s: Option<f64>, progress: &mut dyn Progress) -> Flow {
