@@ -15,6 +15,7 @@ mod guard;
 mod hostile_paths;
 mod limits_cli;
 mod metrics_abuse;
+mod parse_cli;
 mod parse_formats;
 mod parse_props;
 mod parse_shapes;

@@ -55,16 +55,16 @@ fn skipped_rows(ev: &Events) -> Vec<u64> {
 
 /// A text file being built line by line, remembering line numbers.
 #[derive(Default)]
-struct Text {
+pub struct Text {
     lines: Vec<String>,
 }
 
 impl Text {
-    fn push(&mut self, line: impl Into<String>) -> u64 {
+    pub fn push(&mut self, line: impl Into<String>) -> u64 {
         self.lines.push(line.into());
         self.lines.len() as u64
     }
-    fn bytes(&self) -> Vec<u8> {
+    pub fn bytes(&self) -> Vec<u8> {
         let mut s = self.lines.join("\n");
         s.push('\n');
         s.into_bytes()
@@ -72,13 +72,13 @@ impl Text {
 }
 
 /// What the particle log generator put where.
-struct LogFacts {
-    text: Text,
-    header1: u64,
-    header2: u64,
-    warning: u64,
-    rows: usize,
-    outside: u64,
+pub struct LogFacts {
+    pub text: Text,
+    pub header1: u64,
+    pub header2: u64,
+    pub warning: u64,
+    pub rows: usize,
+    pub outside: u64,
 }
 
 /// A thermodynamic log as particle codes print it (the layout of the thermo
@@ -86,7 +86,8 @@ struct LogFacts {
 /// echoed input commands and a setup block, a header line of keywords, a row
 /// every 50 steps, run statistics; then a second run whose header prints other
 /// keywords. Values come from an invented cooling lattice, not from a solver.
-fn particle_log() -> LogFacts {
+/// With `blow_up`, the second run's energies grow tenfold a row and turn NaN.
+pub fn particle_log(blow_up: bool) -> LogFacts {
     let mut t = Text::default();
     let mut outside = 0;
     let mut text = |t: &mut Text, s: &str| {
@@ -158,13 +159,19 @@ fn particle_log() -> LogFacts {
     }
     let header2 = t.push("   Step          Temp          PotEng         KinEng         TotEng         Press          Volume");
     for i in 0..5 {
+        let grow = if blow_up { 10f64.powi(i) } else { 1.0 };
+        let ke = if blow_up && i == 4 {
+            f64::NAN
+        } else {
+            2.4 * grow
+        };
         t.push(format!(
             "{:10} {:14.7} {:14.7} {:14.7} {:14.7} {:14.7} {:14.4}",
             250 + 20 * i,
-            1.6,
+            1.6 * grow,
             -4.8,
-            2.4,
-            -2.4,
+            ke,
+            -2.4 + ke,
             0.3,
             4741.8
         ));
@@ -186,7 +193,7 @@ fn particle_log() -> LogFacts {
 
 #[test]
 fn solver_log_finds_its_tables_and_keeps_text_out_of_the_counts() {
-    let f = particle_log();
+    let f = particle_log(false);
     let ev = same_however_cut(&f.text.bytes());
     assert_eq!(ev.rows.len(), f.rows);
     assert_eq!(ev.schemas.len(), 2);
@@ -240,7 +247,7 @@ fn a_few_numbers_in_a_banner_are_not_a_table() {
 /// `NodeOutput` per node with one `ResponseType` per column, then `Data`
 /// holding whitespace rows, then the closing markup. Written here by hand for
 /// two nodes with two displacement components each.
-fn xml_recorder(rows: usize) -> (Vec<u8>, u64) {
+pub fn xml_recorder(rows: usize) -> (Vec<u8>, u64) {
     let mut t = Text::default();
     t.push(r#"<?xml version="1.0" encoding="UTF-8" ?>"#);
     t.push(r#"<OpenSees xmlns:xsi="http://www.w3.org/2001/XMLSchema-instance">"#);
@@ -383,7 +390,7 @@ fn unit_spellings_in_headers() {
 
 /// A headerless recorder: step counter, time, two probes; output every third
 /// step of Δt = 1e-3.
-fn headerless(rows: usize, stride: u32, with_step: bool) -> Vec<u8> {
+pub fn headerless(rows: usize, stride: u32, with_step: bool) -> Vec<u8> {
     let mut t = Text::default();
     for i in 0..rows {
         let step = stride * i as u32;

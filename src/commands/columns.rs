@@ -109,7 +109,8 @@ fn notes(sink: &FirstColumns, scheme: Option<&str>) -> String {
         ));
     }
     lines.extend(scheme.map(str::to_owned));
-    if let Some(dt) = t.declared_step_size {
+    let said = t.notes.iter().any(|n| n.contains("declared at line"));
+    if let Some(dt) = t.declared_step_size.filter(|_| !said) {
         lines.push(format!("the file declares a step size of {dt:e}"));
     }
     lines.extend(sink.notes.iter().cloned());

@@ -15,6 +15,10 @@ pub struct Clock {
     time_col: Option<usize>,
     step_col: Option<usize>,
     dt_col: Option<usize>,
+    /// Simulated time per solver step that the file declares (`timestep
+    /// 0.005`), used when a step counter but no time column is written:
+    /// time = step × this.
+    declared_step: Option<f64>,
     /// Latest finite values.
     pub time: Option<f64>,
     pub step: Option<f64>,
@@ -49,6 +53,14 @@ impl Clock {
         }
     }
 
+    /// Take time as step × `dt` when the file declares a step size and writes a
+    /// step counter but no time column (particle-code logs).
+    pub fn set_declared_step(&mut self, dt: Option<f64>) {
+        self.declared_step = dt.filter(|h| {
+            h.is_finite() && *h > 0.0 && self.time_col.is_none() && self.step_col.is_some()
+        });
+    }
+
     /// Column of the simulated time, if any.
     pub fn time_col(&self) -> Option<usize> {
         self.time_col
@@ -62,8 +74,8 @@ impl Clock {
     /// Advance by one row.
     pub fn tick(&mut self, values: &[f64], arrival_s: Option<f64>) {
         let read = |c: Option<usize>| super::finite_at(values, c);
-        let time = read(self.time_col);
         let step = read(self.step_col);
+        let time = read(self.time_col).or_else(|| Some(step? * self.declared_step?));
         let dt = read(self.dt_col);
         if let (Some(t), Some(t0)) = (time, self.time) {
             self.time_per_row = smooth(self.time_per_row, t - t0);

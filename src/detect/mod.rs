@@ -131,8 +131,12 @@ impl Engine {
             Box::new(solver::Solver::new(roles)),
             Box::new(step::StepSize::new(roles)),
         ];
+        let mut shared = Shared::new(roles);
+        shared
+            .clock
+            .set_declared_step(schema.declared.step_size.map(|(_, dt)| dt));
         Self {
-            shared: Shared::new(roles),
+            shared,
             detectors,
             status: Status::default(),
             scratch: Vec::new(),

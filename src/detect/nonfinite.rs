@@ -17,7 +17,6 @@ pub struct NonFinite {
     counters: Vec<bool>,
     /// Columns the user excluded (role `ignore`).
     ignored: Vec<bool>,
-    time_col: Option<usize>,
     seen_finite: Vec<bool>,
     reported: Vec<bool>,
     last_time: Option<f64>,
@@ -37,7 +36,6 @@ impl NonFinite {
                 .map(|i| matches!(role(i), Role::Time | Role::StepNumber))
                 .collect(),
             ignored: (0..n).map(|i| role(i) == Role::Ignore).collect(),
-            time_col: roles.find(Role::Time),
             seen_finite: vec![false; n],
             reported: vec![false; n],
             last_time: None,
@@ -80,13 +78,9 @@ impl Detector for NonFinite {
         "nonfinite"
     }
 
-    fn feed(&mut self, sample: &Sample, _shared: &Shared, out: &mut Vec<Finding>) {
+    fn feed(&mut self, sample: &Sample, shared: &Shared, out: &mut Vec<Finding>) {
         let n = self.names.len().min(sample.values.len());
-        if let Some(t) = self.time_col.and_then(|i| sample.values.get(i))
-            && t.is_finite()
-        {
-            self.last_time = Some(*t);
-        }
+        self.last_time = shared.clock.time;
         // Fast path: every checked column has been finite before and is now.
         if self.settled && sample.values[..n].iter().all(|v| v.is_finite()) {
             return;
@@ -150,26 +144,25 @@ mod tests {
     use crate::parse::header::split_unit;
     use crate::parse::roles::{RoleRules, assign};
 
-    fn detector(names: &[&str]) -> NonFinite {
+    /// The detector and the shared clock it reads the time from.
+    fn detector(names: &[&str]) -> (NonFinite, Shared) {
         let schema = Schema {
             columns: names.iter().map(|n| split_unit(n)).collect(),
             ..Schema::default()
         };
         let roles = assign(&schema, &RoleRules::default());
-        NonFinite::new(&schema, &roles)
+        (NonFinite::new(&schema, &roles), Shared::new(&roles))
     }
 
-    fn feed(d: &mut NonFinite, line: u64, values: &[f64]) -> Vec<Finding> {
+    fn feed(d: &mut (NonFinite, Shared), line: u64, values: &[f64]) -> Vec<Finding> {
         let mut out = Vec::new();
-        d.feed(
-            &Sample {
-                line,
-                values,
-                arrival_s: None,
-            },
-            &Shared::new(&crate::parse::roles::RoleMap::default()),
-            &mut out,
-        );
+        let sample = Sample {
+            line,
+            values,
+            arrival_s: None,
+        };
+        d.1.tick(&sample);
+        d.0.feed(&sample, &d.1, &mut out);
         out
     }
 

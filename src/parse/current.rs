@@ -37,7 +37,19 @@ impl Current {
     /// The schema in force applies from `line` on.
     pub fn set_schema(&mut self, line: u64, mut schema: Schema, sink: &mut dyn RowSink) {
         schema.declared = self.declared.clone();
-        self.time_col = roles::assign(&schema, &self.rules).find(Role::Time);
+        let roles = roles::assign(&schema, &self.rules);
+        self.time_col = roles.find(Role::Time);
+        if let (None, Some(step), Some((at, dt))) = (
+            self.time_col,
+            roles.find(Role::StepNumber),
+            schema.declared.step_size,
+        ) {
+            schema.notes.push(format!(
+                "no time column: time is taken as {} × {dt:e}, the step size declared at line {at} \
+                 (exact while the step size stays the same)",
+                schema.columns[step].name
+            ));
+        }
         self.last_time = None;
         self.rows_in_segment = 0;
         sink.schema(line, &schema);

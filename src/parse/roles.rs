@@ -302,6 +302,8 @@ mod tests {
             ("E_mol", Internal),
             ("TotEng", Total),
             ("Etot[eV]", Total),
+            ("Etot/N [eV]", Total),
+            ("Ekin/N", Kinetic),
             ("Econserve", Total),
             ("contact energy", Artificial),
             ("E_contact", Artificial),
@@ -334,6 +336,7 @@ mod tests {
             "Volume",
             "CPU",
             "kin_visc",
+            "atoms",
         ];
         for name in probes {
             assert_eq!(role(name), Role::Probe, "{name}");

@@ -263,7 +263,8 @@ const MARKERS: &[&str] = &[
     "e", "en", "eng", "ener", "energy", "energies", "w", "work", "d",
 ];
 
-/// Words that qualify a term without changing it.
+/// Words that qualify a term without changing it (`Etot/N` is the total
+/// energy per atom).
 const NEUTRAL: &[&str] = &[
     "sum",
     "cum",
@@ -277,6 +278,12 @@ const NEUTRAL: &[&str] = &[
     "model",
     "global",
     "glob",
+    "n",
+    "per",
+    "atom",
+    "atoms",
+    "natoms",
+    "particle",
 ];
 
 /// A stem of an energy term.
@@ -502,12 +509,11 @@ fn single_token(t: &str, may_stand_alone: bool) -> Option<(EnergyTerm, String)> 
 }
 
 fn stem_reason(s: &Stem, marker: bool) -> String {
-    let what = if s.part {
-        "a part of the potential energy"
+    if s.part {
+        format!("a part of the potential energy (stem \"{}…\")", s.text)
     } else if marker {
-        "energy word with"
+        format!("stem \"{}…\" with an energy word", s.text)
     } else {
-        "energy word"
-    };
-    format!("{what} \"{}…\"", s.text)
+        format!("energy stem \"{}…\"", s.text)
+    }
 }
