@@ -18,7 +18,7 @@ use anyhow::Context;
 
 use crate::alarm::Alarm;
 use crate::pipeline::Pipeline;
-use crate::pipeline::drive::{FILE_SLICE_BYTES, drive_file};
+use crate::pipeline::drive::{FILE_SLICE_BYTES, drive_bytes, drive_file};
 use crate::settings::Settings;
 
 pub use score::{CaseScore, Label, Totals};
@@ -153,8 +153,7 @@ pub fn score_set(set: &Set) -> anyhow::Result<SetScore> {
 pub fn alarms_of(bytes: &[u8], settings: &Settings) -> Vec<Alarm> {
     let mut pipeline = Pipeline::new(settings);
     let mut alarms: Vec<Alarm> = Vec::new();
-    pipeline.feed(bytes, None, &mut alarms);
-    pipeline.finish(&mut alarms);
+    drive_bytes(bytes, &mut pipeline, &mut alarms);
     alarms
 }
 

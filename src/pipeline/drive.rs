@@ -1,5 +1,6 @@
 //! The only loops that feed a [`Pipeline`]: [`drive_file`] reads a plain file
-//! from start to end (`scan`, `evaluate`), and [`Follow`] turns the events of
+//! from start to end (`scan`, `columns`, `evaluate`; [`drive_bytes`] the same
+//! for a history in memory), and [`Follow`] turns the events of
 //! a followed [`Source`] into pipeline input (`guard`, the dashboard's data
 //! thread, each run of the fleet). Both hand the bytes on in slices with a
 //! [`checkpoint`](Sink::checkpoint) after each, where the sink may sample the
@@ -83,6 +84,17 @@ pub fn drive_file(
     }
     sink.checkpoint(None, pipeline);
     Ok(total)
+}
+
+/// Read a whole history held in memory through `pipeline` into `sink`, as
+/// [`drive_file`] reads a file (one slice, then the end).
+pub fn drive_bytes(bytes: &[u8], pipeline: &mut Pipeline, sink: &mut dyn Sink) {
+    pipeline.feed(bytes, None, sink);
+    if sink.checkpoint(None, pipeline) == Flow::Stop {
+        return;
+    }
+    pipeline.finish(sink);
+    sink.checkpoint(None, pipeline);
 }
 
 /// What one [`Follow::poll`] did.

@@ -4,7 +4,8 @@
 //! notifications on the parent directory only as a wake-up hint. [`Scripted`] is a
 //! fake source that plays a fixed script, for tests of guard and the dashboard.
 //! Sources only read: they never write, lock or truncate the followed file.
-//! They hand out raw bytes; splitting into lines is the pipeline's job.
+//! They hand out raw bytes; splitting into lines is the pipeline's job, and
+//! the one loop that polls a source is `pipeline::drive::Follow`.
 
 mod fake;
 mod follow;
@@ -14,11 +15,7 @@ pub use fake::{Scripted, Step};
 pub use follow::{FollowConfig, Follower, not_followable};
 
 use std::io;
-use std::sync::Arc;
-use std::sync::atomic::{AtomicBool, Ordering};
-use std::sync::mpsc::Sender;
-use std::thread::JoinHandle;
-use std::time::{Duration, Instant};
+use std::time::Duration;
 
 /// Why the followed file must be read again from its start.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -78,77 +75,6 @@ pub trait Source {
     }
 }
 
-/// A message from a source thread: the event and when it was read.
-#[derive(Debug, Clone)]
-pub struct SourceMsg {
-    pub event: Result<Event, String>,
-    pub at: Instant,
-}
-
-/// Handle to a source running on its own thread; dropping it does not stop
-/// the thread, call [`SourceThread::stop`].
-pub struct SourceThread {
-    stop: Arc<AtomicBool>,
-    handle: Option<JoinHandle<()>>,
-}
-
-impl SourceThread {
-    /// Ask the thread to end and wait for it (at most one poll period).
-    pub fn stop(mut self) {
-        self.stop.store(true, Ordering::Relaxed);
-        if let Some(h) = self.handle.take() {
-            let _ = h.join();
-        }
-    }
-}
-
-/// Poll `source` on a thread and send every event into `tx`, wrapped with the
-/// instant it was read. The thread ends when `tx`'s receiver is dropped or on
-/// [`SourceThread::stop`]. `max_wait` bounds each sleep (and so the stop delay).
-pub fn spawn<S, M>(
-    mut source: S,
-    tx: Sender<M>,
-    wrap: fn(SourceMsg) -> M,
-    max_wait: Duration,
-) -> SourceThread
-where
-    S: Source + Send + 'static,
-    M: Send + 'static,
-{
-    let stop = Arc::new(AtomicBool::new(false));
-    let flag = Arc::clone(&stop);
-    let handle = std::thread::spawn(move || {
-        while !flag.load(Ordering::Relaxed) {
-            match source.poll() {
-                Ok(Some(event)) => {
-                    let msg = SourceMsg {
-                        event: Ok(event),
-                        at: Instant::now(),
-                    };
-                    if tx.send(wrap(msg)).is_err() {
-                        return;
-                    }
-                }
-                Ok(None) => source.wait(max_wait),
-                Err(e) => {
-                    let msg = SourceMsg {
-                        event: Err(e.to_string()),
-                        at: Instant::now(),
-                    };
-                    if tx.send(wrap(msg)).is_err() {
-                        return;
-                    }
-                    source.wait(max_wait);
-                }
-            }
-        }
-    });
-    SourceThread {
-        stop,
-        handle: Some(handle),
-    }
-}
-
 /// Strip NUL bytes (left by a writer that kept its offset across a truncation).
 /// Returns the input unchanged when there are none.
 pub fn strip_nul(bytes: Vec<u8>) -> Vec<u8> {
@@ -168,36 +94,6 @@ mod tests {
         let v = strip_nul(b"\0\0\0a,1\n\0b,2\n".to_vec());
         assert_eq!(v, b"a,1\nb,2\n");
         assert_eq!(strip_nul(b"x\n".to_vec()), b"x\n");
-    }
-
-    #[test]
-    fn spawned_source_delivers_script_in_order() {
-        let src = Scripted::new(vec![
-            Step::Event(Event::Appeared),
-            Step::Event(Event::Data(b"1\n".to_vec())),
-            Step::Quiet,
-            Step::Event(Event::Data(b"2\n".to_vec())),
-        ]);
-        let (tx, rx) = std::sync::mpsc::channel();
-        let th = spawn(src, tx, |m| m, Duration::from_millis(5));
-        let mut got = Vec::new();
-        for _ in 0..3 {
-            got.push(
-                rx.recv_timeout(Duration::from_secs(10))
-                    .unwrap()
-                    .event
-                    .unwrap(),
-            );
-        }
-        th.stop();
-        assert_eq!(
-            got,
-            vec![
-                Event::Appeared,
-                Event::Data(b"1\n".to_vec()),
-                Event::Data(b"2\n".to_vec())
-            ]
-        );
     }
 }
 
