@@ -159,7 +159,11 @@ impl Sink for Batcher {
     fn note(&mut self, note: &Note) {
         match note {
             Note::Arrived { .. } | Note::CaughtUp { .. } => {}
-            Note::Appeared | Note::Missing | Note::Restarted(_) | Note::ReadError(_) => {
+            Note::Appeared
+            | Note::Missing
+            | Note::Restarted(_)
+            | Note::ReadError(_)
+            | Note::Shrank { .. } => {
                 self.gone |= !self.out.send(Msg::Source(note.describe()));
             }
         }
