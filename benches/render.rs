@@ -101,6 +101,15 @@ fn state() -> AppState {
                 forecast_steps: Some(1e6),
                 ..Evidence::default()
             },
+            growth_confirmed: i >= 150_000,
+            levels: vec![(
+                "growth",
+                if i >= 150_000 {
+                    Level::Critical
+                } else {
+                    Level::Ok
+                },
+            )],
         });
         b.arrival_s = Some(f64::from(i / PER_BATCH));
         s.update(Msg::Data(Box::new(b)));

@@ -5,13 +5,48 @@
 
 use serde::{Deserialize, Serialize};
 
-/// Severity, ordered: `Ok < Warning < Critical`.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash, Serialize, Deserialize)]
+/// Severity, ordered: `Ok < Warning < Critical`. In JSON and CSV it is
+/// written in lower case (`ok`, `warning`, `critical`, see [`Level::code`]);
+/// people read it as [`Level::word`]; processes get [`Level::exit_code`].
+#[derive(
+    Debug, Clone, Copy, Default, PartialEq, Eq, PartialOrd, Ord, Hash, Serialize, Deserialize,
+)]
 #[serde(rename_all = "lowercase")]
 pub enum Level {
+    #[default]
     Ok,
     Warning,
     Critical,
+}
+
+impl Level {
+    /// The one display word of the level, on every screen and in every text
+    /// report: `OK`, `WARNING`, `CRITICAL`, as monitoring plugins print them.
+    pub fn word(self) -> &'static str {
+        match self {
+            Level::Ok => "OK",
+            Level::Warning => "WARNING",
+            Level::Critical => "CRITICAL",
+        }
+    }
+
+    /// The level as written in JSON and CSV files (as serde writes it).
+    pub fn code(self) -> &'static str {
+        match self {
+            Level::Ok => "ok",
+            Level::Warning => "warning",
+            Level::Critical => "critical",
+        }
+    }
+
+    /// Exit code by the monitoring-plugin convention: 0 OK, 1 warning, 2 critical.
+    pub fn exit_code(self) -> i32 {
+        match self {
+            Level::Ok => 0,
+            Level::Warning => 1,
+            Level::Critical => 2,
+        }
+    }
 }
 
 /// Quantitative evidence attached to a finding; every field optional (and
@@ -84,4 +119,19 @@ pub struct Finding {
     /// One sentence in the trade's words.
     pub message: String,
     pub evidence: Evidence,
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn the_code_is_what_serde_writes() {
+        for l in [Level::Ok, Level::Warning, Level::Critical] {
+            assert_eq!(
+                serde_json::to_string(&l).ok(),
+                Some(format!("\"{}\"", l.code()))
+            );
+        }
+    }
 }

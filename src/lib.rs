@@ -22,6 +22,7 @@ pub mod metrics;
 pub mod outfile;
 pub mod parse;
 pub mod pipeline;
+pub mod readout;
 pub mod report;
 pub mod report_plot;
 pub mod scale;

@@ -278,22 +278,14 @@ impl ReportBuilder {
 impl ScanReport {
     /// Exit code by the monitoring-plugin convention: 0 ok, 1 warning, 2 critical.
     pub fn exit_code(&self) -> i32 {
-        match self.status {
-            Level::Ok => 0,
-            Level::Warning => 1,
-            Level::Critical => 2,
-        }
+        self.status.exit_code()
     }
 
     /// A short human-readable report.
     pub fn to_text(&self) -> String {
         use std::fmt::Write;
         let mut s = String::new();
-        let status = match self.status {
-            Level::Ok => "OK",
-            Level::Warning => "WARNING",
-            Level::Critical => "CRITICAL",
-        };
+        let status = self.status.word();
         let _ = writeln!(
             s,
             "{}: {status} — {} rows, {} skipped, {} alarms",

@@ -54,7 +54,7 @@ fn once_lists_runs_worst_first_and_exits_with_the_worst_state() {
         [
             ("CRITICAL", "cd-omega-2.01"),
             ("WARNING", "hidden-damper"),
-            ("healthy", "chain-ramp-ok")
+            ("OK", "chain-ramp-ok")
         ]
     );
     let none = Command::new(BIN)

@@ -30,6 +30,7 @@ mod ui_dashboard;
 mod ui_demo;
 mod ui_extremes;
 mod ui_hangup;
+mod ui_readouts;
 mod ui_support;
 mod ui_tmux;
 mod ui_tmux_fleet;

@@ -102,9 +102,9 @@ fn tiny_size_still_says_the_state_in_words() {
 #[test]
 fn state_is_told_in_words_at_every_size() {
     for (kind, word) in [
-        (Kind::Healthy, "HEALTHY"),
-        (Kind::Warning, "WARNING"),
-        (Kind::Critical, "CRITICAL"),
+        (Kind::Healthy, "✔ OK"),
+        (Kind::Warning, "▲ WARNING"),
+        (Kind::Critical, "✖ CRITICAL"),
     ] {
         for (w, h) in [(80, 24), (200, 60)] {
             let text = screen(&state(kind), w, h);
@@ -356,6 +356,8 @@ fn estimates(line: u64, rho: f64, onset_line: u64, arrival_s: f64) -> rhoscope::
             forecast_wall_s: Some(25.0),
             ..Default::default()
         },
+        growth_confirmed: rho > 1.0,
+        levels: vec![],
     });
     b.arrival_s = Some(arrival_s);
     b
@@ -372,7 +374,7 @@ fn the_alarms_onset_holds_while_the_growth_goes_on() {
         2_800,
         t0 + 0.1,
     ))));
-    assert_eq!(s.evidence.onset_line, Some(2_800));
+    assert_eq!(s.readouts.evidence.onset_line, Some(2_800));
     let mut b = estimates(3_000, 1.18, 2_990, t0 + 0.2);
     b.items
         .push(rhoscope::app::Item::Alarm(rhoscope::alarm::Alarm {
@@ -387,13 +389,13 @@ fn the_alarms_onset_holds_while_the_growth_goes_on() {
             },
         }));
     s.update(Msg::Data(Box::new(b)));
-    assert_eq!(s.evidence.onset_line, Some(2_990));
+    assert_eq!(s.readouts.evidence.onset_line, Some(2_990));
     // A later fit places the onset inside its own window: the alarm's stays.
     s.update(Msg::Data(Box::new(estimates(3_050, 1.19, 3_040, t0 + 0.3))));
-    assert_eq!(s.evidence.onset_line, Some(2_990));
+    assert_eq!(s.readouts.evidence.onset_line, Some(2_990));
     // Growth gone: the fit's own reading is shown again.
     s.update(Msg::Data(Box::new(estimates(3_060, 0.99, 3_040, t0 + 0.4))));
-    assert_eq!(s.evidence.onset_line, Some(3_040));
+    assert_eq!(s.readouts.evidence.onset_line, Some(3_040));
 }
 
 #[test]
@@ -407,4 +409,143 @@ fn a_quiet_run_shows_its_forecast_without_a_wall_clock_countdown() {
     let quiet = screen(&s, 200, 60);
     assert!(quiet.contains("4,000 steps at the last row"), "{quiet}");
     assert!(!quiet.contains("4,000 steps · 25 s"), "{quiet}");
+}
+
+#[test]
+fn help_80x24() {
+    let mut s = state(Kind::Healthy);
+    s.update(Msg::Key(Key::Char('?')));
+    insta::assert_snapshot!(screen(&s, 80, 24));
+}
+
+#[test]
+fn stop_dialog_200x60() {
+    let mut s = state(Kind::Critical);
+    s.update(Msg::Key(Key::Char('X')));
+    insta::assert_snapshot!(screen(&s, 200, 60));
+}
+
+/// Words separated by single spaces.
+fn words(text: &str) -> String {
+    text.split_whitespace().collect::<Vec<_>>().join(" ")
+}
+
+/// The text inside the box whose top border holds `title`, row by row,
+/// joined into words: what a reader sees of it, wrapping undone.
+fn boxed_text(screen: &str, title: &str) -> String {
+    let rows: Vec<Vec<char>> = screen
+        .lines()
+        .map(|l| l.trim_matches('"').chars().collect())
+        .collect();
+    let title: Vec<char> = title.chars().collect();
+    let (top, at) = rows
+        .iter()
+        .enumerate()
+        .find_map(|(y, r)| {
+            r.windows(title.len())
+                .position(|w| w == title.as_slice())
+                .map(|x| (y, x))
+        })
+        .unwrap_or_else(|| panic!("no box titled {title:?}:\n{screen}"));
+    let left = (0..=at)
+        .rev()
+        .find(|&x| rows[top][x] == '┌')
+        .expect("the box's corner");
+    let right = (at..rows[top].len())
+        .find(|&x| rows[top][x] == '┐')
+        .expect("the box's other corner");
+    let mut inside = Vec::new();
+    for r in &rows[top + 1..] {
+        if r[left] == '└' {
+            return words(&inside.join(" "));
+        }
+        inside.push(r[left + 1..right].iter().collect::<String>());
+    }
+    panic!("the box titled {title:?} has no bottom border:\n{screen}");
+}
+
+#[test]
+fn the_help_and_the_stop_dialog_show_every_caution_whole() {
+    for (w, h) in [(80, 24), (200, 60)] {
+        let mut s = state(Kind::Critical);
+        s.update(Msg::Key(Key::Char('?')));
+        let help = boxed_text(&screen(&s, w, h), "┌ help — any key closes ");
+        s.update(Msg::Key(Key::Char('z')));
+        s.update(Msg::Key(Key::Char('X')));
+        let stop = boxed_text(&screen(&s, w, h), "┌ stop the run ");
+        for c in rhoscope::ui::overlay::CAUTIONS {
+            assert!(
+                help.contains(&words(c)),
+                "help at {w}x{h} lacks {c:?}:\n{help}"
+            );
+            assert!(
+                stop.contains(&words(c)),
+                "stop dialog at {w}x{h} lacks {c:?}:\n{stop}"
+            );
+        }
+        for (k, what) in rhoscope::app::update::KEYS {
+            assert!(
+                help.contains(k) && help.contains(&words(what)),
+                "{k} at {w}x{h}"
+            );
+        }
+        for a in &s.config.actions {
+            assert!(stop.contains(&words(a)), "{a} at {w}x{h}:\n{stop}");
+        }
+    }
+}
+
+#[test]
+fn the_banner_keeps_its_keys_and_the_whole_alarm_when_it_fits() {
+    for (w, h) in [(80, 24), (200, 60)] {
+        let text = screen(&state(Kind::Critical), w, h);
+        let rows: Vec<&str> = text.lines().map(|l| l.trim_matches('"')).collect();
+        // The banner starts on the third row and takes what it needs.
+        let banner = words(&rows[2..5].join(" "));
+        assert!(banner.contains("a acknowledge, X stop the run"), "{banner}");
+        assert!(
+            banner.contains("growth per step 1.0100 for 700 steps; overflow in 51,000 steps"),
+            "{w}x{h}: {banner}"
+        );
+    }
+    // An alarm longer than the banner's rows still shows its keys and level.
+    let mut s = state(Kind::Critical);
+    let mut b = rhoscope::app::Batch::default();
+    b.items
+        .push(rhoscope::app::Item::Alarm(rhoscope::alarm::Alarm {
+            level: Level::Critical,
+            detector: "growth",
+            line: 2_001,
+            time: None,
+            message: "a very long explanation ".repeat(40),
+            evidence: Default::default(),
+        }));
+    s.update(Msg::Data(Box::new(b)));
+    let text = screen(&s, 80, 24);
+    let rows: Vec<&str> = text.lines().map(|l| l.trim_matches('"')).collect();
+    assert!(
+        rows[2].contains("CRITICAL") && rows[2].contains("a acknowledge"),
+        "{text}"
+    );
+    assert!(
+        rows[5].starts_with('┌'),
+        "three banner rows at most:\n{text}"
+    );
+}
+
+#[test]
+fn a_run_that_went_quiet_after_the_stop_action_is_said_to_have_stopped() {
+    let mut s = state(Kind::Critical);
+    s.update(Msg::StopReport {
+        ok: true,
+        report: vec!["created the stop file runs/plate-7/STOP".into()],
+    });
+    let last = s.last_row_s.unwrap();
+    s.update(Msg::Tick { now_s: last + 23.0 });
+    let text = screen(&s, 200, 60);
+    assert!(
+        text.contains("the run stopped after the stop action (last row line 2,001, 23 s ago)"),
+        "{text}"
+    );
+    assert!(!text.contains("no new rows"), "{text}");
 }

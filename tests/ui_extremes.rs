@@ -99,7 +99,9 @@ fn state_of(rows: &[[f64; 6]], est: f64, time: impl Fn(usize) -> f64) -> AppStat
     }
     b.items.push(Item::Alarm(rhoscope::alarm::Alarm {
         level: rhoscope::finding::Level::Critical,
-        detector: "nonfinite",
+        // A blow-up hides the forecast: only the run of NaN estimates has one,
+        // so the others draw every readout at its extreme.
+        detector: if est.is_nan() { "nonfinite" } else { "growth" },
         line: rows.len() as u64 + 1,
         time: Some(est),
         message: format!("value {est:e} then not finite"),
@@ -119,6 +121,11 @@ fn state_of(rows: &[[f64; 6]], est: f64, time: impl Fn(usize) -> f64) -> AppStat
             onset_time: Some(est),
             stability_margin: Some(est),
         },
+        growth_confirmed: true,
+        levels: vec![
+            ("growth", rhoscope::finding::Level::Critical),
+            ("energy", rhoscope::finding::Level::Critical),
+        ],
     });
     b.arrival_s = Some(1.0);
     s.update(Msg::Data(Box::new(b)));
@@ -233,10 +240,14 @@ fn the_many_run_view_draws_runs_at_the_extremes() {
     for (i, v) in extremes().into_iter().enumerate() {
         let mut r = RunRow::new(format!("run-{i}"), PathBuf::from(format!("r{i}/h.csv")));
         r.arriving(v, 10);
-        r.take_status(&Evidence {
-            growth_per_step: Some(v),
-            forecast_wall_s: Some(v),
-            ..Evidence::default()
+        r.take_status(&Status {
+            evidence: Evidence {
+                growth_per_step: Some(v),
+                forecast_wall_s: Some(v),
+                ..Evidence::default()
+            },
+            growth_confirmed: true,
+            levels: vec![("growth", rhoscope::finding::Level::Critical)],
         });
         r.alarm(&rhoscope::alarm::Alarm {
             level: rhoscope::finding::Level::Critical,
@@ -275,7 +286,7 @@ fn spec_of(series: Vec<Vec<(f64, f64)>>, x: (f64, f64), reference: Option<f64>) 
             })
             .collect(),
         x,
-        x_name: "t [s]",
+        x_time: true,
         x_labels: true,
         reference: reference.map(|r| (r, "ref")),
         empty: "empty",

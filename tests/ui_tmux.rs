@@ -33,7 +33,7 @@ fn watch_draws_reads_keys_and_quits_cleanly_at_80x24() {
     let file = history(dir.path());
     let tm = Tmux::start("small", 80, 24, &command(&file, ""));
     let s = tm.wait_for("600 rows", |s| s.contains("rows 600"));
-    assert!(s.contains("HEALTHY"), "{s}");
+    assert!(s.contains("✔ OK"), "{s}");
     assert!(s.contains("growth per step"), "{s}");
     assert!(s.contains("stop: not armed"), "{s}");
 

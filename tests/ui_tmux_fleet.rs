@@ -83,7 +83,7 @@ fn sorted_with_states(s: &str) -> bool {
                 && b < c
                 && la.contains("✖ CRITICAL")
                 && lb.contains("⏸ STALLED")
-                && lc.contains("healthy")
+                && lc.contains("✔ OK")
         }
         _ => false,
     }

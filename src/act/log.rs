@@ -173,11 +173,7 @@ pub fn stderr_line(r: &Record) -> String {
     let mut s = format!("rhoscope guard {clock}Z");
     match r.event.as_str() {
         "alarm" => {
-            let level = match r.level {
-                Some(Level::Critical) => "CRITICAL",
-                Some(Level::Warning) => "warning",
-                _ => "ok",
-            };
+            let level = r.level.unwrap_or(Level::Ok).word();
             s.push_str(&format!(
                 " {level} [{}]",
                 r.detector.as_deref().unwrap_or("")

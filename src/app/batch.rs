@@ -35,6 +35,8 @@ pub struct Batch {
     pub values: Vec<f64>,
     /// Latest detector estimates after this chunk.
     pub status: Option<Status>,
+    /// Which integration scheme the detectors use and where it came from.
+    pub scheme: Option<String>,
     /// Monotonic seconds when the chunk was read (live only).
     pub arrival_s: Option<f64>,
     /// Rows read and run through the detectors but left out of this batch
@@ -72,7 +74,10 @@ impl Batch {
             },
             other => other,
         }));
-        self.status = later.status.or(self.status.take());
+        if later.status.is_some() {
+            self.status = later.status;
+            self.scheme = later.scheme;
+        }
         self.arrival_s = later.arrival_s.or(self.arrival_s);
         self.undrawn_rows += later.undrawn_rows;
     }

@@ -171,6 +171,7 @@ impl Sink for Batcher {
     fn checkpoint(&mut self, arrival_s: Option<f64>, progress: &mut dyn Progress) -> Flow {
         let mut b = std::mem::take(&mut self.batch);
         b.status = Some(progress.status().clone());
+        b.scheme = progress.scheme_note().map(str::to_string);
         b.arrival_s = arrival_s;
         self.gone |= !self.out.send(Msg::Data(Box::new(b)));
         if self.gone { Flow::Stop } else { Flow::Go }

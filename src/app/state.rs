@@ -6,16 +6,16 @@
 use std::collections::VecDeque;
 use std::time::Duration;
 
-use crate::finding::Evidence;
 use crate::finding::Level;
 use crate::history::Table;
 use crate::parse::Schema;
 use crate::parse::roles::{EnergyTerm, Role, RoleMap};
+use crate::readout::Readouts;
 
 use super::speed::Speed;
 
 /// Fixed settings of a dashboard session.
-#[derive(Debug, Clone, Default)]
+#[derive(Debug, Clone)]
 pub struct Config {
     /// The followed file, as given.
     pub file: String,
@@ -35,6 +35,25 @@ pub struct Config {
     pub auto_stop: bool,
     /// Rows kept at full resolution.
     pub retention_rows: usize,
+    /// Relative energy balance error at which the energy detector warns
+    /// (fraction, from the settings), shown beside the balance reading.
+    pub balance_warning: f64,
+}
+
+impl Default for Config {
+    fn default() -> Self {
+        Self {
+            file: String::new(),
+            color: false,
+            end_time_s: None,
+            wall_left_at_start: None,
+            started_s: 0.0,
+            actions: Vec::new(),
+            auto_stop: false,
+            retention_rows: 0,
+            balance_warning: crate::detect::DetectSettings::default().balance_warning,
+        }
+    }
 }
 
 /// One line of the events list.
@@ -78,10 +97,6 @@ pub struct View {
     pub probe: usize,
 }
 
-/// Growth per step within this of 1 reads as "≈ 1" on the dashboard: a fit
-/// over a short window cannot tell 1.0004 from 1 (common practice, no source);
-/// the alarms stay the detectors' to raise.
-pub const NEAR_ONE_PER_STEP: f64 = 1e-3;
 /// Deepest zoom: 4⁻⁶ of the run.
 pub const MAX_ZOOM: u8 = 6;
 /// Seconds without new rows before the header says so.
@@ -89,9 +104,10 @@ pub const QUIET_S: f64 = 5.0;
 /// Events kept in the list.
 pub const MAX_EVENTS: usize = 500;
 
-/// Names of the derived (per-batch) series.
+/// Columns of the derived (per-batch) series.
 pub const D_GROWTH: usize = 0;
-pub const D_BALANCE: usize = 1;
+pub const D_GROWTH_APPROX: usize = 1;
+pub const D_BALANCE: usize = 2;
 
 /// The whole dashboard state.
 #[derive(Debug, Clone)]
@@ -101,12 +117,14 @@ pub struct AppState {
     pub roles: RoleMap,
     /// The file's columns against x (time, or line number without a time column).
     pub table: Table,
-    /// Detector estimates against x: growth per step, balance error, forecast steps.
+    /// Readings against x: the growth per step of a confirmed mode, that of
+    /// an approximate fit, the balance error.
     pub derived: Table,
-    pub evidence: Evidence,
-    /// Onset carried by the worst alarm of this segment (level, line, time):
-    /// shown while the growth goes on, as later fits' windows move past it.
-    pub alarm_onset: Option<(Level, u64, Option<f64>)>,
+    /// What the readouts show, decided from the detectors' status and alarms.
+    pub readouts: Readouts,
+    /// The integration scheme the detectors use and where it came from, in
+    /// words (`--scheme`, the configuration or the file's `# scheme:` line).
+    pub scheme: Option<String>,
     pub rows: u64,
     pub skipped: u64,
     pub segments: u32,
@@ -157,13 +175,17 @@ impl AppState {
             roles: RoleMap::default(),
             table: Table::with_sizes(vec![], retention, crate::history::DEFAULT_ENVELOPE_BUCKETS),
             derived: Table::with_sizes(
-                vec!["growth per step".into(), "energy balance error".into()],
+                vec![
+                    "growth per step".into(),
+                    "growth per step (latest fit)".into(),
+                    "energy balance error".into(),
+                ],
                 retention,
                 crate::history::DEFAULT_ENVELOPE_BUCKETS,
             ),
             config,
-            evidence: Evidence::default(),
-            alarm_onset: None,
+            readouts: Readouts::default(),
+            scheme: None,
             rows: 0,
             skipped: 0,
             segments: 0,
@@ -235,6 +257,23 @@ impl AppState {
             .get(col)
             .map(|c| c.name.as_str())
             .unwrap_or("?")
+    }
+
+    /// Unit of a column of the current schema, when the file gives one.
+    pub fn column_unit(&self, col: usize) -> Option<&str> {
+        self.schema
+            .columns
+            .get(col)
+            .and_then(|c| c.unit.as_deref())
+            .filter(|u| !u.is_empty())
+    }
+
+    /// The unit the columns share, when the file gives one and it is the same for all.
+    pub fn shared_unit(&self, cols: &[usize]) -> Option<&str> {
+        let first = self.column_unit(*cols.first()?)?;
+        cols.iter()
+            .all(|c| self.column_unit(*c) == Some(first))
+            .then_some(first)
     }
 
     /// Latest simulated time.

@@ -8,6 +8,7 @@ use crate::finding::Evidence;
 use crate::finding::Level;
 use crate::parse::SegmentReason;
 use crate::parse::roles::Role;
+use crate::readout::Standing;
 
 use super::batch::{Batch, Item};
 use super::state::{AppState, Dialog, Event, MAX_ZOOM, StopState};
@@ -305,7 +306,7 @@ impl AppState {
                 }
                 Item::Segment { line, reason } => {
                     self.segments += 1;
-                    self.alarm_onset = None;
+                    self.readouts.segment();
                     self.level = Level::Ok;
                     pending_break = true;
                     self.push_event(Event {
@@ -343,11 +344,7 @@ impl AppState {
                     };
                     self.push_event(ev.clone());
                     self.level = self.level.max(a.level);
-                    if let Some(line) = a.evidence.onset_line
-                        && a.level > self.alarm_onset.map_or(Level::Ok, |o| o.0)
-                    {
-                        self.alarm_onset = Some((a.level, line, a.evidence.onset_time));
-                    }
+                    self.readouts.alarm(a);
                     if a.level > Level::Ok
                         && self.banner.as_ref().is_none_or(|x| a.level >= x.level)
                     {
@@ -357,29 +354,19 @@ impl AppState {
             }
         }
         if let Some(s) = &b.status {
-            self.evidence = s.evidence.clone();
-            // Later fits place the onset inside their own window; while the growth
-            // goes on, the onset the alarm was raised with is the one to show.
-            let growing = self
-                .evidence
-                .growth_per_step
-                .is_some_and(|r| r > 1.0 + super::state::NEAR_ONE_PER_STEP);
-            if growing
-                && let Some((_, line, time)) = self.alarm_onset
-                && self.evidence.onset_line.is_none_or(|now| line < now)
-            {
-                self.evidence.onset_line = Some(line);
-                self.evidence.onset_time = time;
-            }
+            self.scheme.clone_from(&b.scheme);
+            self.readouts.status(s);
             if let Some(x) = self.table.last_x() {
-                let e = &self.evidence;
+                let r = &self.readouts;
                 let nan = f64::NAN;
+                let rho = r.growth_per_step().unwrap_or(nan);
+                let (confirmed, approx) = match r.growth {
+                    Standing::Confirmed => (rho, nan),
+                    _ => (nan, rho),
+                };
                 self.derived.push(
                     x,
-                    &[
-                        e.growth_per_step.unwrap_or(nan),
-                        e.balance_error.unwrap_or(nan),
-                    ],
+                    &[confirmed, approx, r.evidence.balance_error.unwrap_or(nan)],
                 );
             }
         }

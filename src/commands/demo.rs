@@ -9,7 +9,6 @@ use anyhow::{Context, bail};
 use crate::cli::demo::DemoArgs;
 use crate::demo::live::{LiveEnd, LiveOptions, write_live};
 use crate::demo::{DEMO_SCENARIO, Scenario, catalogue, find};
-use crate::finding::Level;
 use crate::outfile::same_file;
 
 /// Run `rhoscope demo`; returns the exit code.
@@ -65,14 +64,6 @@ fn scenario(name: &str) -> anyhow::Result<Scenario> {
     find(name).with_context(|| format!("no case named '{name}' (see 'rhoscope demo --list')"))
 }
 
-fn level_word(l: Level) -> &'static str {
-    match l {
-        Level::Ok => "ok",
-        Level::Warning => "warning",
-        Level::Critical => "critical",
-    }
-}
-
 fn list() -> anyhow::Result<i32> {
     // Declared levels only: listing runs no simulation (onset and crash lines,
     // which need the runs, are in the labels.csv written by --write-all).
@@ -87,7 +78,7 @@ fn list() -> anyhow::Result<i32> {
                 out,
                 "{:w$}  {:8}  {}",
                 c.name,
-                level_word(c.level),
+                c.level.code(),
                 c.description
             )?;
         }
@@ -135,7 +126,7 @@ fn write_all(dir: &Path) -> anyhow::Result<()> {
             "{},{},{},{},{}",
             c.name,
             name,
-            level_word(e.level),
+            e.level.code(),
             e.onset_line.map_or(String::new(), |v| v.to_string()),
             e.crash_line.map_or(String::new(), |v| v.to_string())
         )?;

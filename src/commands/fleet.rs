@@ -14,33 +14,29 @@ use crate::cli::follow::POLL_FLEET_DEFAULT;
 use crate::fleet::{Fleet, FleetConfig, RunRow, RunState, worst_first};
 use crate::metrics::{self, Context};
 use crate::outfile::{Output, OutputKind, Watched, check_outputs};
-use crate::ui::format;
+use crate::ui::fleet::Cells;
 
-/// The table of runs, worst first, as plain text (one line per run).
+/// The table of runs, worst first, as plain text (one line per run); the
+/// cells are worded as in the fleet view ([`Cells`]).
 pub fn table(rows: &[&RunRow], ctx: &Context) -> String {
+    let w = rows
+        .iter()
+        .map(|r| r.name.chars().count())
+        .fold(24, usize::max);
     let mut out = format!(
-        "{:<9} {:<24} {:>10} {:>11} {:>6} {:>12} {:>10} {:>8}  {}\n",
+        "{:<9} {:<w$} {:>10} {:>11} {:>6} {:>12} {:>10} {:>8}  {}\n",
         "state", "run", "rows", "sim time", "done", "growth/step", "overflow", "quiet", "note"
     );
     for r in rows {
-        let state = r.state(ctx.now_s, ctx.stall_after_s);
+        let c = Cells::of(r, ctx.now_s, ctx.stall_after_s, ctx.end_time_s);
         let note = r
             .note
             .clone()
             .or_else(|| r.alarm_message.clone())
             .unwrap_or_default();
         out.push_str(&format!(
-            "{:<9} {:<24} {:>10} {:>11} {:>6} {:>12} {:>10} {:>8}  {}\n",
-            state.word(),
-            r.name,
-            r.rows_total,
-            format::num(r.sim_time_s, 4),
-            r.progress(ctx.end_time_s)
-                .map_or_else(|| "—".to_string(), |p| format!("{:.0} %", p * 100.0)),
-            format::num(r.growth_per_step, 6),
-            format::duration(r.forecast_left_s(ctx.now_s)),
-            format::duration(r.age_s(ctx.now_s)),
-            note
+            "{:<9} {:<w$} {:>10} {:>11} {:>6} {:>12} {:>10} {:>8}  {}\n",
+            c.state, r.name, r.rows_total, c.sim_time, c.done, c.growth, c.overflow, c.quiet, note
         ));
     }
     out

@@ -67,11 +67,7 @@ pub fn scan_and_render(
     let slice = (size / STATUS_SAMPLES).clamp(SLICE_BYTES.0, SLICE_BYTES.1) as usize;
     let mut collector = PlotCollector::new();
     let report = scan_path_with(file, settings, progress, Some((&mut collector, slice)))?;
-    let verdict = match report.status {
-        Level::Ok => "ok",
-        Level::Warning => "warning",
-        Level::Critical => "critical",
-    };
+    let verdict = report.status.code();
     let critical = report
         .alarms
         .iter()

@@ -120,6 +120,7 @@ fn watch(
         actions: describe_actions(&cfg),
         auto_stop: !args.by_key_only,
         retention_rows: args.retention_rows,
+        balance_warning: settings.detect.balance_warning,
     });
     state.esc_quits = args.esc_back;
     if !Path::new(&args.file).exists() {
@@ -210,7 +211,7 @@ fn watch(
         "rhoscope watch: {} rows of {}; state {}; {stop}",
         state.rows,
         args.file.display(),
-        crate::ui::theme::state_word(state.level)
+        state.level.word()
     );
     if let Some(n) = &state.note {
         let _ = writeln!(out, "rhoscope watch: {n}");
@@ -228,8 +229,6 @@ pub fn exit_code(state: &AppState) -> i32 {
     match (&state.fatal, &state.stop, state.level) {
         (Some(_), _, _) => EXIT_THREAD_FAILED,
         (_, StopState::Done { ok: false, .. }, _) => EXIT_ACTION_FAILED,
-        (_, _, Level::Ok) => 0,
-        (_, _, Level::Warning) => 1,
-        (_, _, Level::Critical) => 2,
+        (_, _, level) => level.exit_code(),
     }
 }

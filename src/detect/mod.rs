@@ -18,7 +18,7 @@ pub mod nonfinite;
 pub mod solver;
 pub mod step;
 
-use crate::finding::{Evidence, Finding};
+use crate::finding::{Evidence, Finding, Level};
 use crate::parse::Schema;
 use crate::parse::roles::RoleMap;
 
@@ -66,6 +66,24 @@ impl Default for DetectSettings {
 #[derive(Debug, Clone, Default, PartialEq)]
 pub struct Status {
     pub evidence: Evidence,
+    /// The growth fields come from a growing mode that passed the detectors'
+    /// checks (the estimate their alarms carry); false when they are only the
+    /// latest fit's ([`Detector::fallback_status`]).
+    pub growth_confirmed: bool,
+    /// Each detector's standing level in this segment: that of its latest
+    /// finding, rises and clears alike (what the alarm book holds).
+    pub levels: Vec<(&'static str, Level)>,
+}
+
+impl Status {
+    /// The standing level of the detector named `detector` (`Ok` when it has
+    /// found nothing in this segment).
+    pub fn level(&self, detector: &str) -> Level {
+        self.levels
+            .iter()
+            .find(|(d, _)| *d == detector)
+            .map_or(Level::Ok, |(_, l)| *l)
+    }
 }
 
 /// What the engine derives from each row once, for every detector: the
@@ -117,6 +135,8 @@ pub struct Engine {
     shared: Shared,
     detectors: Vec<Box<dyn Detector + Send>>,
     status: Status,
+    /// Each detector's latest finding level (see [`Status::levels`]).
+    levels: Vec<(&'static str, Level)>,
     /// Findings of one detector on the current row, before they are named.
     scratch: Vec<Finding>,
 }
@@ -139,6 +159,7 @@ impl Engine {
             shared,
             detectors,
             status: Status::default(),
+            levels: Vec::new(),
             scratch: Vec::new(),
         }
     }
@@ -149,8 +170,12 @@ impl Engine {
         self.shared.tick(sample);
         for d in &mut self.detectors {
             d.feed(sample, &self.shared, &mut self.scratch);
-            if !self.scratch.is_empty() {
+            if let Some(last) = self.scratch.last() {
                 let name = d.name();
+                match self.levels.iter_mut().find(|(n, _)| *n == name) {
+                    Some(slot) => slot.1 = last.level,
+                    None => self.levels.push((name, last.level)),
+                }
                 out.extend(self.scratch.drain(..).map(|f| (name, f)));
             }
         }
@@ -162,9 +187,11 @@ impl Engine {
         for d in &self.detectors {
             d.status(&mut s);
         }
+        s.growth_confirmed = s.evidence.growth_per_step.is_some();
         for d in &self.detectors {
             d.fallback_status(&mut s);
         }
+        s.levels.clone_from(&self.levels);
         self.status = s;
         &self.status
     }

@@ -128,14 +128,6 @@ impl Totals {
     }
 }
 
-fn level_word(l: Level) -> &'static str {
-    match l {
-        Level::Ok => "ok",
-        Level::Warning => "warning",
-        Level::Critical => "critical",
-    }
-}
-
 /// The table and totals as plain text.
 pub fn table(cases: &[CaseScore]) -> String {
     let opt = |v: Option<u64>| v.map_or("-".to_string(), |v| v.to_string());
@@ -153,8 +145,8 @@ pub fn table(cases: &[CaseScore]) -> String {
         s += &format!(
             "{:<w$} {:<9} {:<9} {:>7} {:>7} {:>9} {:<9} {:>6}\n",
             c.name,
-            level_word(c.expected.level),
-            level_word(c.got),
+            c.expected.level.code(),
+            c.got.code(),
             opt(c.expected.onset_line),
             opt(c.expected.crash_line),
             opt(c.first_alarm_line),

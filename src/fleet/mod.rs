@@ -14,10 +14,12 @@ use std::cmp::Ordering;
 use std::path::PathBuf;
 
 use crate::alarm::Alarm;
+use crate::detect::Status;
 use crate::finding::Level;
 use crate::parse::roles::{Role, RoleMap};
 use crate::parse::{Schema, SegmentReason};
 use crate::pipeline::sink::{Flow, Note, Progress, Sink};
+use crate::readout::Readouts;
 
 pub use tracker::{Fleet, FleetConfig};
 
@@ -44,7 +46,7 @@ impl RunState {
             RunState::Warning => "WARNING",
             RunState::Stalled => "STALLED",
             RunState::Waiting => "WAITING",
-            RunState::Healthy => "healthy",
+            RunState::Healthy => Level::Ok.word(),
         }
     }
 
@@ -98,12 +100,10 @@ pub struct RunRow {
     pub read_bytes_total: u64,
     /// Latest simulated time (time column), when there is one.
     pub sim_time_s: Option<f64>,
-    /// Latest growth per solver step (spectral radius of the fitted map).
-    pub growth_per_step: Option<f64>,
-    /// Wall-clock seconds to overflow at the current growth, as estimated at
-    /// `forecast_at_s`.
-    pub forecast_wall_s: Option<f64>,
-    /// Monotonic seconds at which the forecast was made.
+    /// What the run's readouts show (growth per step with its standing, the
+    /// overflow forecast, a blow-up already seen), decided as on the dashboard.
+    pub readouts: Readouts,
+    /// Monotonic seconds at which the readouts' wall-clock forecast was made.
     pub forecast_at_s: Option<f64>,
     /// Monotonic seconds (same clock as the tracker's) of the last new bytes.
     pub last_data_s: Option<f64>,
@@ -129,8 +129,7 @@ impl RunRow {
             restarts_total: 0,
             read_bytes_total: 0,
             sim_time_s: None,
-            growth_per_step: None,
-            forecast_wall_s: None,
+            readouts: Readouts::default(),
             forecast_at_s: None,
             last_data_s: None,
             note: None,
@@ -148,10 +147,15 @@ impl RunRow {
     }
 
     /// Take the latest estimates of the pipeline's detectors.
-    pub fn take_status(&mut self, evidence: &crate::finding::Evidence) {
-        self.growth_per_step = evidence.growth_per_step;
-        self.forecast_wall_s = evidence.forecast_wall_s;
-        self.forecast_at_s = evidence.forecast_wall_s.and(self.arrival_s);
+    pub fn take_status(&mut self, status: &Status) {
+        self.readouts.status(status);
+        self.forecast_at_s = self.readouts.evidence.forecast_wall_s.and(self.arrival_s);
+    }
+
+    /// Growth per solver step worth showing: a confirmed mode's, or the
+    /// latest fit's when it finds no growth ([`Readouts`]).
+    pub fn growth_per_step(&self) -> Option<f64> {
+        self.readouts.growth_per_step()
     }
 
     /// Seconds since the last new output, at monotonic `now_s`.
@@ -167,7 +171,7 @@ impl RunRow {
 
     /// Wall-clock seconds left to overflow at `now_s` (the forecast counted down).
     pub fn forecast_left_s(&self, now_s: f64) -> Option<f64> {
-        let (f, at) = (self.forecast_wall_s?, self.forecast_at_s?);
+        let (f, at) = (self.readouts.evidence.forecast_wall_s?, self.forecast_at_s?);
         Some((f - (now_s - at)).max(0.0))
     }
 
@@ -199,6 +203,7 @@ impl Sink for RunRow {
             Level::Warning => self.warnings_total += 1,
             Level::Ok => {}
         }
+        self.readouts.alarm(alarm);
         if alarm.level >= self.level {
             self.level = alarm.level;
             self.alarm_message = Some(alarm.message.clone());
@@ -220,8 +225,8 @@ impl Sink for RunRow {
         self.restarts_total += 1;
         self.level = Level::Ok;
         self.alarm_message = None;
-        self.growth_per_step = None;
-        self.forecast_wall_s = None;
+        self.readouts.segment();
+        self.forecast_at_s = None;
     }
 
     fn skipped(&mut self, _line: u64, reason: &crate::parse::SkipReason) {
@@ -244,7 +249,7 @@ impl Sink for RunRow {
     }
 
     fn checkpoint(&mut self, _arrival_s: Option<f64>, progress: &mut dyn Progress) -> Flow {
-        self.take_status(&progress.status().evidence);
+        self.take_status(progress.status());
         Flow::Go
     }
 }
@@ -265,8 +270,8 @@ fn compare(a: &RunRow, b: &RunRow, now_s: f64, stall_after_s: f64) -> Ordering {
             fa.total_cmp(&fb)
         })
         .then_with(|| {
-            let ga = a.growth_per_step.unwrap_or(0.0);
-            let gb = b.growth_per_step.unwrap_or(0.0);
+            let ga = a.growth_per_step().unwrap_or(0.0);
+            let gb = b.growth_per_step().unwrap_or(0.0);
             gb.total_cmp(&ga)
         })
         .then_with(|| {
@@ -291,6 +296,19 @@ mod tests {
             time: None,
             message: format!("{level:?} here"),
             evidence: Evidence::default(),
+        }
+    }
+
+    /// A confirmed growing mode forecast to overflow in `wall_s` seconds.
+    fn forecast(wall_s: f64) -> Status {
+        Status {
+            evidence: Evidence {
+                growth_per_step: Some(1.1),
+                forecast_wall_s: Some(wall_s),
+                ..Evidence::default()
+            },
+            growth_confirmed: true,
+            levels: vec![],
         }
     }
 
@@ -327,10 +345,7 @@ mod tests {
     #[test]
     fn forecast_counts_down_and_progress_is_clamped() {
         let mut r = row("a");
-        r.take_status(&Evidence {
-            forecast_wall_s: Some(100.0),
-            ..Evidence::default()
-        });
+        r.take_status(&forecast(100.0));
         // Tolerance: plain subtraction of small integers, exact in f64.
         assert!((r.forecast_left_s(30.0).unwrap() - 70.0).abs() < 1e-12);
         assert!(r.forecast_left_s(500.0).unwrap().abs() < 1e-12);
@@ -345,20 +360,21 @@ mod tests {
     fn worst_first_puts_critical_then_sooner_overflow_then_growth() {
         let mut c1 = row("c1");
         c1.alarm(&alarm(Level::Critical));
-        c1.take_status(&Evidence {
-            forecast_wall_s: Some(300.0),
-            ..Evidence::default()
-        });
+        c1.take_status(&forecast(300.0));
         let mut c2 = row("c2");
         c2.alarm(&alarm(Level::Critical));
-        c2.take_status(&Evidence {
-            forecast_wall_s: Some(20.0),
-            ..Evidence::default()
-        });
+        c2.take_status(&forecast(20.0));
         let mut w = row("w");
         w.alarm(&alarm(Level::Warning));
         let mut h_grow = row("h-grow");
-        h_grow.growth_per_step = Some(1.001);
+        h_grow.take_status(&Status {
+            evidence: Evidence {
+                growth_per_step: Some(1.001),
+                ..Evidence::default()
+            },
+            growth_confirmed: true,
+            levels: vec![],
+        });
         let h_calm = row("h-calm");
         let mut stalled = row("s");
         stalled.last_data_s = Some(-500.0);

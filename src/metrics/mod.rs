@@ -122,13 +122,13 @@ fn families() -> [Family; 12] {
         Family {
             name: "rhoscope_run_growth_per_step_ratio",
             kind: "gauge",
-            help: "Estimated amplification per solver step (spectral radius of the fitted one-step map); above 1 errors grow.",
-            get: |r, _| r.growth_per_step,
+            help: "Estimated amplification per solver step (spectral radius of the fitted one-step map); above 1 errors grow. That of a growing mode the detectors confirmed, else the latest fit's when it shows no growth; absent while a fit claims a growth the checks did not confirm.",
+            get: |r, _| r.growth_per_step(),
         },
         Family {
             name: "rhoscope_run_overflow_forecast_seconds",
             kind: "gauge",
-            help: "Wall-clock seconds until the growing mode is forecast to overflow, when one is growing.",
+            help: "Wall-clock seconds until the growing mode is forecast to overflow, when one is growing (absent once the run has blown up).",
             get: |r, c| r.forecast_left_s(c.now_s),
         },
         Family {

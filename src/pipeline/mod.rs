@@ -205,6 +205,9 @@ impl Progress for Pipeline {
     fn skipped(&self) -> u64 {
         Pipeline::skipped(self)
     }
+    fn scheme_note(&self) -> Option<&str> {
+        Pipeline::scheme_note(self)
+    }
 }
 
 #[cfg(test)]

@@ -76,6 +76,8 @@ pub trait Progress {
     fn lines(&self) -> u64;
     /// Lines skipped so far (notes not counted).
     fn skipped(&self) -> u64;
+    /// Which integration scheme the detectors use and where it came from, in words.
+    fn scheme_note(&self) -> Option<&str>;
 }
 
 /// Receives, in file order, what the pipeline finds. Only `alarm` is required.

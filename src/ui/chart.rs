@@ -16,7 +16,7 @@ use ratatui::widgets::{Axis, Block, Borders, Chart, Dataset, GraphType, Paragrap
 
 use crate::scale::{Fitted, fit};
 
-use super::format::{axis_labels, num};
+use super::format::{axis_labels, count, num, sim_time};
 use super::theme::Theme;
 
 /// Most series drawn in one chart; the legend counts the rest.
@@ -39,8 +39,9 @@ pub struct Spec<'a> {
     pub series: Vec<Series>,
     /// The x window shared by all charts.
     pub x: (f64, f64),
-    /// Label of the x axis (`t [s]`, `line`); shown only when `x_labels` is set.
-    pub x_name: &'a str,
+    /// x is simulated time (else line numbers): the axis' end labels read
+    /// `t 0.12000 s` or `line 1,234`, shown only when `x_labels` is set.
+    pub x_time: bool,
     pub x_labels: bool,
     /// A horizontal line always kept in view, with its legend name.
     pub reference: Option<(f64, &'a str)>,
@@ -88,6 +89,18 @@ fn legend<'a>(spec: &Spec, theme: &Theme) -> Line<'a> {
         ));
     }
     Line::from(spans)
+}
+
+/// An end label of the x axis: a simulated time as every screen writes it,
+/// or a line number.
+fn x_label(x: f64, time: bool) -> String {
+    if time {
+        sim_time(x)
+    } else if (0.0..1e15).contains(&x) {
+        format!("line {}", count(x.round() as u64))
+    } else {
+        format!("line {}", num(Some(x), 4))
+    }
 }
 
 /// Draw a chart in `area` (bordered, titled, legend on the bottom border).
@@ -144,10 +157,9 @@ pub fn draw(f: &mut Frame, area: Rect, spec: Spec, theme: &Theme) {
         Axis::default()
             .bounds([0.0, 1.0])
             .style(theme.dim())
-            .title(Span::styled(spec.x_name.to_string(), theme.dim()))
             .labels([
-                Span::raw(num(Some(spec.x.0), 4)),
-                Span::raw(num(Some(spec.x.1), 4)),
+                Span::raw(x_label(spec.x.0, spec.x_time)),
+                Span::raw(x_label(spec.x.1, spec.x_time)),
             ])
     } else {
         Axis::default().bounds([0.0, 1.0])

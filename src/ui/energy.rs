@@ -6,12 +6,11 @@ use ratatui::layout::Rect;
 use ratatui::text::{Line, Span};
 
 use crate::app::AppState;
-use crate::finding::Level;
 use crate::parse::roles::EnergyTerm;
 
 use super::chart::{self, Series, Spec, legend_name};
 use super::format::pct;
-use super::growth::{empty_spec, x_name};
+use super::growth::empty_spec;
 use super::theme::{Theme, symbol};
 
 /// Plain name of an energy term.
@@ -26,19 +25,23 @@ pub fn term_name(t: EnergyTerm) -> &'static str {
     }
 }
 
-/// Level of a balance error against the warning threshold (fraction).
-pub fn balance_level(err: Option<f64>, warning: f64) -> Level {
-    match err {
-        Some(e) if !e.is_finite() => Level::Critical,
-        Some(e) if e.abs() >= 2.0 * warning => Level::Critical,
-        Some(e) if e.abs() >= warning => Level::Warning,
-        _ => Level::Ok,
+/// The balance error as the screens give it: the value, the symbol of the
+/// energy detector's standing level and the configured warning threshold.
+pub fn balance_words(s: &AppState, narrow: bool) -> String {
+    let r = &s.readouts;
+    let mut w = format!(
+        "{} {}",
+        pct(r.evidence.balance_error),
+        symbol(r.balance_level)
+    );
+    if !narrow {
+        w.push_str(&format!(
+            " (warning at ±{:.1} %)",
+            100.0 * s.config.balance_warning
+        ));
     }
+    w
 }
-
-/// Balance error above which the panel marks a warning (fraction; the
-/// detectors' default threshold).
-const BALANCE_WARNING: f64 = 0.05;
 
 /// Chart of the energy terms.
 pub fn chart(f: &mut Frame, area: Rect, s: &AppState, t: &Theme, x_labels: bool) {
@@ -57,20 +60,23 @@ pub fn chart(f: &mut Frame, area: Rect, s: &AppState, t: &Theme, x_labels: bool)
             style: t.series(n),
         })
         .collect();
-    let err = s.evidence.balance_error;
-    let lvl = balance_level(err, BALANCE_WARNING);
+    let cols: Vec<usize> = terms.iter().map(|(c, _)| *c).collect();
+    let name = match s.shared_unit(&cols) {
+        Some(u) => format!(" energy terms [{u}] "),
+        None => " energy terms ".to_string(),
+    };
     let title = Line::from(vec![
-        Span::styled(" energy terms ", t.title()),
+        Span::styled(name, t.title()),
         Span::styled(
-            format!("balance error {} {} ", pct(err), symbol(lvl)),
-            t.level(lvl),
+            format!("balance error {} ", balance_words(s, area.width < 70)),
+            t.level(s.readouts.balance_level),
         ),
     ]);
     let spec = Spec {
         title,
         series,
         x,
-        x_name: x_name(s),
+        x_time: s.x_is_time(),
         x_labels,
         reference: None,
         empty: "no energy columns recognised",

@@ -12,7 +12,8 @@ use ratatui::widgets::{Cell, Paragraph, Row, Table, TableState};
 
 use crate::app::fleet::FleetView;
 use crate::finding::Level;
-use crate::fleet::RunState;
+use crate::fleet::{RunRow, RunState};
+use crate::readout::Standing;
 
 use super::format;
 use super::theme::{Theme, symbol};
@@ -31,6 +32,45 @@ fn state_symbol(s: RunState) -> &'static str {
         RunState::Stalled => "⏸",
         RunState::Waiting => "…",
         other => symbol(level_of(other)),
+    }
+}
+
+/// The table's cells for one run, worded once for the fleet view and the
+/// headless table: state word, done, simulated time, growth per step (`≈`
+/// before a latest fit's, nothing for a growth the checks did not confirm),
+/// time to overflow (or when the run already blew up), time since output.
+pub struct Cells {
+    pub state: String,
+    pub done: String,
+    pub sim_time: String,
+    pub growth: String,
+    pub overflow: String,
+    pub quiet: String,
+}
+
+impl Cells {
+    /// The cells of `r` at monotonic `now_s`.
+    pub fn of(r: &RunRow, now_s: f64, stall_after_s: f64, end_time_s: Option<f64>) -> Self {
+        let g = &r.readouts;
+        let growth = match g.growth {
+            Standing::Approximate => format!("≈{}", format::num(g.growth_per_step(), 6)),
+            Standing::Confirmed => format::num(g.growth_per_step(), 6),
+            Standing::NoEstimate | Standing::NotConfirmed => "—".into(),
+        };
+        let overflow = match g.blow_up {
+            Some(_) => "blew up".into(),
+            None => format::duration(r.forecast_left_s(now_s)),
+        };
+        Self {
+            state: r.state(now_s, stall_after_s).word().into(),
+            done: r
+                .progress(end_time_s)
+                .map_or_else(|| "—".to_string(), |p| format!("{:.0} %", p * 100.0)),
+            sim_time: format::num(r.sim_time_s, 4),
+            growth,
+            overflow,
+            quiet: format::duration(r.age_s(now_s)),
+        }
     }
 }
 
@@ -88,19 +128,21 @@ fn table(f: &mut Frame, area: Rect, v: &FleetView, t: &Theme) {
         .enumerate()
         .map(|(i, r)| {
             let s = r.state(v.now_s, v.stall_after_s);
+            let c = Cells::of(r, v.now_s, v.stall_after_s, v.end_time_s);
             let mark = if i == v.selected { ">" } else { " " };
+            let growth_style = match r.readouts.growth {
+                Standing::Confirmed => t.level(r.readouts.growth_level),
+                _ => t.dim(),
+            };
             let mut cells = vec![
                 Cell::from(mark),
-                Cell::from(format!("{} {}", state_symbol(s), s.word())).style(t.level(level_of(s))),
+                Cell::from(format!("{} {}", state_symbol(s), c.state)).style(t.level(level_of(s))),
                 Cell::from(r.name.clone()),
-                Cell::from(
-                    r.progress(v.end_time_s)
-                        .map_or_else(|| "—".to_string(), |p| format!("{:.0} %", p * 100.0)),
-                ),
-                Cell::from(format::num(r.sim_time_s, 4)),
-                Cell::from(format::num(r.growth_per_step, 6)),
-                Cell::from(format::duration(r.forecast_left_s(v.now_s))),
-                Cell::from(format::duration(r.age_s(v.now_s))),
+                Cell::from(c.done),
+                Cell::from(c.sim_time),
+                Cell::from(c.growth).style(growth_style),
+                Cell::from(c.overflow),
+                Cell::from(c.quiet),
             ];
             if wide {
                 let note = r
@@ -138,7 +180,6 @@ fn table(f: &mut Frame, area: Rect, v: &FleetView, t: &Theme) {
 mod tests {
     #![allow(clippy::unwrap_used)]
     use super::*;
-    use crate::fleet::RunRow;
     use crate::pipeline::sink::Sink;
     use ratatui::Terminal;
     use ratatui::backend::TestBackend;
@@ -185,7 +226,7 @@ mod tests {
             );
             assert!(lines[2].contains("beam-07"), "{s}");
             assert!(
-                lines[3].contains("healthy") && lines[3].contains("beam-01"),
+                lines[3].contains("OK") && lines[3].contains("beam-01"),
                 "{s}"
             );
         }

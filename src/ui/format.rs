@@ -23,6 +23,12 @@ pub fn num(v: Option<f64>, sig: usize) -> String {
     }
 }
 
+/// A simulated time, the one way every screen writes it: `t 9.4130 s`
+/// (five significant digits).
+pub fn sim_time(t: f64) -> String {
+    format!("t {} s", num(Some(t), 5))
+}
+
 /// A signed percentage of a fraction: `+1.23 %`.
 pub fn pct(frac: Option<f64>) -> String {
     match frac {

@@ -8,20 +8,74 @@ use ratatui::layout::Rect;
 use ratatui::text::{Line, Span};
 use ratatui::widgets::{Block, Borders, Paragraph};
 
+use ratatui::style::Style;
+
 use crate::app::AppState;
-use crate::app::state::{D_BALANCE, D_GROWTH};
+use crate::app::state::{D_BALANCE, D_GROWTH, D_GROWTH_APPROX};
 use crate::finding::Level;
+use crate::readout::{Readouts, Standing};
 
 use super::chart::{self, Series, Spec};
-use super::format::{count, duration, hz, num, pct};
+use super::energy::balance_words;
+use super::format::{count, duration, hz, num, pct, sim_time};
 use super::theme::{Theme, symbol};
-
-use crate::app::state::NEAR_ONE_PER_STEP as NEAR_ONE;
 
 /// Below this a fitted frequency is a real, non-oscillating mode (Hz).
 const MONOTONE_HZ: f64 = 1e-9;
 
-/// Chart of the growth per step against the shared x window.
+/// The growth reading in words, the level it is drawn at, and whether it is
+/// only approximate (drawn dimmed): the standing decided in [`crate::readout`].
+pub fn growth_words(r: &Readouts, narrow: bool) -> (String, Level, bool) {
+    let rho = r.growth_per_step();
+    match r.growth {
+        Standing::NoEstimate => (
+            if narrow { "—" } else { "— no estimate yet" }.into(),
+            Level::Ok,
+            true,
+        ),
+        Standing::NotConfirmed => (
+            if narrow {
+                "— none confirmed"
+            } else {
+                "— no growing mode confirmed"
+            }
+            .into(),
+            Level::Ok,
+            true,
+        ),
+        Standing::Approximate => (
+            if narrow {
+                format!("ρ ≈ {}", num(rho, 4))
+            } else {
+                format!("ρ ≈ {} latest fit, no growing mode", num(rho, 5))
+            },
+            Level::Ok,
+            true,
+        ),
+        Standing::Confirmed if r.growth_level == Level::Ok => (
+            if narrow {
+                format!("ρ {} no alarm", num(rho, 5))
+            } else {
+                format!("ρ {} growing mode, no alarm", num(rho, 5))
+            },
+            Level::Ok,
+            false,
+        ),
+        Standing::Confirmed => (
+            format!("ρ {} {} growing", num(rho, 5), symbol(r.growth_level)),
+            r.growth_level,
+            false,
+        ),
+    }
+}
+
+/// Style of a reading: its level's, dimmed when only approximate.
+fn reading_style(t: &Theme, level: Level, approximate: bool) -> Style {
+    if approximate { t.dim() } else { t.level(level) }
+}
+
+/// Chart of the growth per step against the shared x window: a confirmed
+/// mode's estimate, and the latest fit's where it is only approximate.
 pub fn chart(f: &mut Frame, area: Rect, s: &AppState, t: &Theme, x_labels: bool) {
     let Some(x) = s.x_window() else {
         chart::draw(
@@ -33,27 +87,47 @@ pub fn chart(f: &mut Frame, area: Rect, s: &AppState, t: &Theme, x_labels: bool)
         return;
     };
     let width = usize::from(area.width.saturating_sub(10)).max(1);
-    let points = s.derived.points(D_GROWTH, x.0, x.1, width);
-    let now = s.evidence.growth_per_step;
-    let lvl = growth_level(now);
+    let (words, lvl, approx) = growth_words(&s.readouts, area.width < 60);
     let title = Line::from(vec![
         Span::styled(" growth per step ", t.title()),
-        Span::styled(
-            format!("ρ {} {} ", num(now, 5), growth_words(now, area.width < 60)),
-            t.level(lvl),
-        ),
+        Span::styled(format!("{words} "), reading_style(t, lvl, approx)),
     ]);
+    let wide = area.width >= 90;
     let spec = Spec {
         title,
-        series: vec![Series {
-            name: "ρ per step".into(),
-            points,
-            style: t.series(0),
-        }],
+        series: vec![
+            Series {
+                name: if wide {
+                    "ρ of a confirmed growing mode"
+                } else {
+                    "confirmed"
+                }
+                .into(),
+                points: s.derived.points(D_GROWTH, x.0, x.1, width),
+                style: t.series(0),
+            },
+            Series {
+                name: if wide {
+                    "≈ latest fit, no growing mode"
+                } else {
+                    "≈ latest fit"
+                }
+                .into(),
+                points: s.derived.points(D_GROWTH_APPROX, x.0, x.1, width),
+                style: t.dim(),
+            },
+        ],
         x,
-        x_name: x_name(s),
+        x_time: s.x_is_time(),
         x_labels,
-        reference: Some((1.0, "ρ = 1 stability limit")),
+        reference: Some((
+            1.0,
+            if wide {
+                "ρ = 1 stability limit"
+            } else {
+                "ρ = 1"
+            },
+        )),
         empty: "no estimate yet: the detectors need a window of rows",
     };
     chart::draw(f, area, spec, t);
@@ -71,19 +145,28 @@ pub fn balance_chart(f: &mut Frame, area: Rect, s: &AppState, t: &Theme, x_label
         return;
     };
     let width = usize::from(area.width.saturating_sub(10)).max(1);
-    let points = s.derived.points(D_BALANCE, x.0, x.1, width);
+    // Percent, as the title and the readouts give it.
+    let points: Vec<(f64, f64)> = s
+        .derived
+        .points(D_BALANCE, x.0, x.1, width)
+        .into_iter()
+        .map(|(x, y)| (x, 100.0 * y))
+        .collect();
     let spec = Spec {
         title: Line::from(vec![
-            Span::styled(" energy balance error ", t.title()),
-            Span::raw(format!("{} ", pct(s.evidence.balance_error))),
+            Span::styled(" energy balance error [%] ", t.title()),
+            Span::styled(
+                format!("{} ", balance_words(s, area.width < 70)),
+                t.level(s.readouts.balance_level),
+            ),
         ]),
         series: vec![Series {
-            name: "(created − lost) / energy scale".into(),
+            name: "(created − lost) / energy scale, %".into(),
             points,
             style: t.series(1),
         }],
         x,
-        x_name: x_name(s),
+        x_time: s.x_is_time(),
         x_labels,
         reference: Some((0.0, "balanced")),
         empty: "no energy columns recognised",
@@ -96,39 +179,10 @@ pub(crate) fn empty_spec<'a>(title: &'a str, empty: &'a str) -> Spec<'a> {
         title: Line::from(title),
         series: vec![],
         x: (0.0, 1.0),
-        x_name: "",
+        x_time: false,
         x_labels: false,
         reference: None,
         empty,
-    }
-}
-
-pub(crate) fn x_name(s: &AppState) -> &'static str {
-    if s.x_is_time() { "t [s]" } else { "line" }
-}
-
-fn growth_level(rho: Option<f64>) -> Level {
-    match rho {
-        Some(r) if !r.is_finite() => Level::Critical,
-        Some(r) if r > 1.0 + NEAR_ONE => Level::Warning,
-        _ => Level::Ok,
-    }
-}
-
-fn near_one(rho: Option<f64>) -> bool {
-    rho.is_some_and(|r| (r - 1.0).abs() <= NEAR_ONE)
-}
-
-fn growth_words(rho: Option<f64>, short: bool) -> &'static str {
-    match rho {
-        None => "",
-        Some(r) if !r.is_finite() => "✖ not finite",
-        _ if near_one(rho) && short => "≈ 1",
-        _ if near_one(rho) => "≈ 1: no clear growth",
-        Some(r) if r > 1.0 && short => "▲ above 1",
-        Some(r) if r > 1.0 => "▲ above 1: growing",
-        Some(_) if short => "✔ ≤ 1",
-        Some(_) => "✔ at or below 1",
     }
 }
 
@@ -169,37 +223,28 @@ fn row_interval_s(s: &AppState) -> Option<f64> {
     (rows > 1).then(|| (hi - lo) / (rows - 1) as f64)
 }
 
-/// The readouts block: one fact per line, label then value.
+/// The readouts block: one fact per line, label then value. Values come from
+/// [`AppState::readouts`]; an approximate reading is dimmed.
 pub fn readouts(f: &mut Frame, area: Rect, s: &AppState, t: &Theme) {
-    let e = &s.evidence;
+    let r = &s.readouts;
+    let e = &r.evidence;
     let inner_w = usize::from(area.width.saturating_sub(2));
     let label_w = if inner_w >= 44 { 18 } else { 12 };
-
     let narrow = inner_w < 44;
-    let past = if narrow {
-        "✖ past limit"
-    } else {
-        "✖ past the limit"
-    };
-    let mut rows: Vec<(&str, String, Level)> = Vec::new();
+    let approx = r.growth == Standing::Approximate;
+    let plain = |lvl: Level| reading_style(t, lvl, false);
+    let fit = |lvl: Level| reading_style(t, lvl, approx);
+
+    let mut rows: Vec<(&str, String, Style)> = Vec::new();
+    let (words, lvl, dim) = growth_words(r, narrow);
     rows.push((
         if narrow {
             "growth/step"
         } else {
             "growth per step"
         },
-        match e.growth_per_step {
-            Some(_) if near_one(e.growth_per_step) => {
-                format!("ρ {} ≈ 1", num(e.growth_per_step, 5))
-            }
-            Some(_) => format!(
-                "ρ {} {}",
-                num(e.growth_per_step, 5),
-                symbol(growth_level(e.growth_per_step))
-            ),
-            None => "— (no estimate yet)".to_string(),
-        },
-        growth_level(e.growth_per_step),
+        words,
+        reading_style(t, lvl, dim),
     ));
     let efold = e
         .growth_rate_per_s
@@ -216,45 +261,62 @@ pub fn readouts(f: &mut Frame, area: Rect, s: &AppState, t: &Theme) {
                 if narrow { "" } else { &efold }
             ),
         },
-        Level::Ok,
+        fit(Level::Ok),
     ));
     rows.push((
         if narrow { "mode" } else { "dominant mode" },
         mode_words(e.frequency_hz, row_interval_s(s), narrow),
-        Level::Ok,
+        fit(Level::Ok),
     ));
     let onset = match (e.onset_line, e.onset_time) {
-        (Some(l), Some(tm)) => format!("line {} · t {}", count(l), num(Some(tm), 4)),
-        (Some(l), None) => format!("line {}", count(l)),
-        (None, Some(tm)) => format!("t {}", num(Some(tm), 4)),
+        (Some(l), Some(tm)) if !narrow => format!("line {} · {}", count(l), sim_time(tm)),
+        (Some(l), _) => format!("line {}", count(l)),
+        (None, Some(tm)) => sim_time(tm),
         (None, None) => "—".into(),
     };
-    rows.push(("onset", onset, Level::Ok));
-    let forecast = match e.forecast_steps {
-        None => "—".into(),
-        Some(n) => {
-            let mut v = format!("{} steps", count(n.max(0.0).round() as u64));
+    rows.push(("onset", onset, plain(Level::Ok)));
+    let (forecast, f_lvl) = match (r.blow_up, e.forecast_steps) {
+        (Some(b), _) => (
+            match b.time {
+                Some(tm) if !narrow => {
+                    format!(
+                        "already: non-finite at line {} · {}",
+                        count(b.line),
+                        sim_time(tm)
+                    )
+                }
+                _ => format!("already, line {}", count(b.line)),
+            },
+            Level::Critical,
+        ),
+        (None, None) => ("—".into(), Level::Ok),
+        (None, Some(n)) => {
+            let steps = format!("{} steps", count(n.max(0.0).round() as u64));
             // Wall-clock seconds only while rows flow: a quiet run is not counting down.
             let quiet = s.quiet_for_s().is_some();
-            if let Some(w) = e.forecast_wall_s.filter(|_| !quiet) {
-                v.push_str(&format!(" · {}", duration(Some(w))));
-            }
+            let wall = e.forecast_wall_s.filter(|_| !quiet);
+            let mut v = match wall {
+                Some(w) if narrow => duration(Some(w)),
+                Some(w) => format!("{steps} · {}", duration(Some(w))),
+                None => steps,
+            };
             if quiet && !narrow {
                 v.push_str(" at the last row");
             }
             if !narrow && let Some(tm) = e.forecast_time {
-                v.push_str(&format!(" · t {}", num(Some(tm), 4)));
+                v.push_str(&format!(" · {}", sim_time(tm)));
             }
-            v
+            (v, r.growth_level.max(Level::Warning))
         }
     };
-    let f_lvl = if e.forecast_steps.is_some() {
-        Level::Critical
+    rows.push(("overflow in", forecast, plain(f_lvl)));
+    let past = if narrow {
+        "✖ past limit"
     } else {
-        Level::Ok
+        "✖ past the limit"
     };
-    rows.push(("overflow in", forecast, f_lvl));
     let (margin, m_lvl) = match e.stability_margin {
+        None if s.scheme.is_some() => ("—".to_string(), Level::Ok),
         None => (
             if narrow {
                 "— (no scheme)"
@@ -271,14 +333,14 @@ pub fn readouts(f: &mut Frame, area: Rect, s: &AppState, t: &Theme) {
     rows.push((
         if narrow { "margin" } else { "stability margin" },
         margin,
-        m_lvl,
+        fit(m_lvl),
     ));
     let lines: Vec<Line> = rows
         .into_iter()
-        .map(|(label, value, lvl)| {
+        .map(|(label, value, style)| {
             Line::from(vec![
                 Span::styled(format!("{label:<label_w$}"), t.dim()),
-                Span::styled(value, t.level(lvl)),
+                Span::styled(value, style),
             ])
         })
         .collect();
@@ -294,13 +356,24 @@ mod tests {
     use super::*;
 
     #[test]
-    fn growth_within_a_thousandth_of_one_reads_about_one() {
-        assert_eq!(growth_words(Some(1.0004), true), "≈ 1");
-        assert_eq!(growth_level(Some(1.0004)), Level::Ok);
-        assert_eq!(growth_words(Some(0.9995), false), "≈ 1: no clear growth");
-        assert_eq!(growth_words(Some(1.0011), true), "▲ above 1");
-        assert_eq!(growth_level(Some(1.0011)), Level::Warning);
-        assert_eq!(growth_words(Some(0.99), true), "✔ ≤ 1");
+    fn each_standing_is_worded_as_such() {
+        use crate::readout::Readouts;
+        let mut r = Readouts::default();
+        assert_eq!(growth_words(&r, false).0, "— no estimate yet");
+        r.growth = Standing::NotConfirmed;
+        assert_eq!(growth_words(&r, true).0, "— none confirmed");
+        r.growth = Standing::Approximate;
+        r.evidence.growth_per_step = Some(0.99860);
+        let (w, _, dim) = growth_words(&r, false);
+        assert!(w.starts_with("ρ ≈ 0.99860") && dim, "{w}");
+        r.growth = Standing::Confirmed;
+        r.evidence.growth_per_step = Some(1.2213);
+        assert_eq!(growth_words(&r, true).0, "ρ 1.2213 no alarm");
+        r.growth_level = Level::Critical;
+        assert_eq!(
+            growth_words(&r, true),
+            ("ρ 1.2213 ✖ growing".to_string(), Level::Critical, false)
+        );
     }
 
     #[test]

@@ -11,8 +11,8 @@ use ratatui::widgets::Paragraph;
 use crate::app::{AppState, StopState};
 use crate::finding::Level;
 
-use super::format::{count, duration, num};
-use super::theme::{Theme, state_word, symbol};
+use super::format::{count, duration, num, sim_time};
+use super::theme::{Theme, symbol};
 
 /// Width of the text progress bar (cells).
 const BAR: usize = 12;
@@ -37,7 +37,7 @@ pub fn render(f: &mut Frame, area: Rect, s: &AppState, t: &Theme) {
     let wide = area.width >= 110;
     let mut l1 = vec![
         Span::styled(
-            format!(" {} {} ", symbol(s.level), state_word(s.level)),
+            format!(" {} {} ", symbol(s.level), s.level.word()),
             t.badge(s.level),
         ),
         Span::raw(" "),
@@ -100,20 +100,20 @@ pub fn render(f: &mut Frame, area: Rect, s: &AppState, t: &Theme) {
         Some(tm) => match (s.config.end_time_s, s.progress()) {
             (Some(end), Some(p)) if wide => {
                 l2.push(Span::raw(format!(
-                    " t {} s of {} s {:5.1} % ",
-                    num(Some(tm), 5),
+                    " {} of {} s {:5.1} % ",
+                    sim_time(tm),
                     num(Some(end), 4),
                     100.0 * p
                 )));
                 l2.push(Span::styled(bar(p), t.dim()));
             }
             (Some(end), Some(p)) => l2.push(Span::raw(format!(
-                " t {}/{} s {:.0} %",
-                num(Some(tm), 4),
-                num(Some(end), 3),
+                " {} of {} s {:.0} %",
+                sim_time(tm),
+                num(Some(end), 4),
                 100.0 * p
             ))),
-            _ => l2.push(Span::raw(format!(" t {} s", num(Some(tm), 5)))),
+            _ => l2.push(Span::raw(format!(" {}", sim_time(tm)))),
         },
         None if s.rows > 0 => l2.push(Span::raw(format!(" line {}", count(s.last_line)))),
         None => l2.push(Span::styled(" waiting for the first rows", t.dim())),
@@ -155,11 +155,20 @@ pub fn render(f: &mut Frame, area: Rect, s: &AppState, t: &Theme) {
         )),
         None => {}
     }
-    if let Some(q) = s.quiet_for_s() {
-        l2.push(Span::styled(
+    match (s.quiet_for_s(), &s.stop) {
+        (Some(q), StopState::Done { ok: true, .. }) => l2.push(Span::styled(
+            format!(
+                "  the run stopped after the stop action (last row line {}, {} ago)",
+                count(s.last_line),
+                duration(Some(q))
+            ),
+            t.level(Level::Warning),
+        )),
+        (Some(q), _) => l2.push(Span::styled(
             format!("  no new rows for {}", duration(Some(q))),
             t.level(Level::Warning),
-        ));
+        )),
+        (None, _) => {}
     }
     if let Some(note) = &s.note {
         l2.push(Span::styled(format!("  {note}"), t.dim()));

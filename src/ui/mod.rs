@@ -22,7 +22,7 @@ use ratatui::widgets::Paragraph;
 
 use crate::app::{AppState, Dialog};
 
-use theme::{Theme, state_word, symbol};
+use theme::{Theme, symbol};
 
 /// Smallest area that gets the full dashboard.
 const MIN_W: u16 = 24;
@@ -43,12 +43,12 @@ pub fn render(s: &AppState, f: &mut Frame) {
         let text = format!(
             "{} {} — enlarge the terminal",
             symbol(s.level),
-            state_word(s.level)
+            s.level.word()
         );
         f.render_widget(Paragraph::new(Span::styled(text, t.badge(s.level))), area);
         return;
     }
-    let banner_h = u16::from(s.banner.is_some());
+    let banner_h = events::banner_rows(s, area.width).min(area.height.saturating_sub(MIN_H));
     let [head, banner, body, foot] = Layout::vertical([
         Constraint::Length(2),
         Constraint::Length(banner_h),

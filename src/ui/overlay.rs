@@ -39,33 +39,50 @@ fn panel<'a>(title: &'a str, t: &Theme, level: Level) -> Block<'a> {
         .title(Span::styled(title, t.title()))
 }
 
-/// The help overlay.
+/// What the help says about reading the panels, one paragraph each.
+const READING: [&str; 4] = [
+    "growth per step: spectral radius ρ of the one-step map fitted to recent rows; ρ > 1 means errors grow every step, and the line ρ = 1 is the stability limit. A confirmed growing mode is drawn bright; the latest fit alone, dimmed with ≈; a fit that claims growth the checks did not confirm is not shown.",
+    "energy balance error: energy created (+) or lost (−) relative to the energy scale; numerical instability creates energy, physical growth does not.",
+    "time step: a collapsing step usually means distorting elements.",
+    "✔ OK   ▲ WARNING   ✖ CRITICAL (words and symbols, not colour alone)",
+];
+
+/// Rows `lines` take inside a bordered box `w` wide once wrapped.
+fn wrapped_rows(lines: &[Line], w: u16) -> u16 {
+    let p = Paragraph::new(lines.to_vec()).wrap(Wrap { trim: false });
+    u16::try_from(p.line_count(w.saturating_sub(2))).unwrap_or(u16::MAX)
+}
+
+/// The help overlay: the keys, the cautions, and how to read the panels when
+/// there is room for all of it (the keys and the cautions always come first).
 pub fn help(f: &mut Frame, area: Rect, t: &Theme) {
-    let mut lines: Vec<Line> = vec![Line::styled("Keys", t.title())];
+    let mut keys: Vec<Line> = vec![Line::styled("Keys", t.title())];
     for (k, what) in KEYS {
-        lines.push(Line::from(vec![
+        keys.push(Line::from(vec![
             Span::styled(format!("  {k:<22}"), t.key()),
             Span::raw(*what),
         ]));
     }
-    lines.push(Line::raw(""));
-    lines.push(Line::styled("Reading the panels", t.title()));
-    for s in [
-        "  growth per step: spectral radius ρ of the one-step map fitted to recent rows;",
-        "    ρ > 1 means errors grow every step. The line ρ = 1 is the stability limit.",
-        "  energy balance error: energy created (+) or lost (−) relative to the energy",
-        "    scale; numerical instability creates energy, physical growth does not.",
-        "  time step: a collapsing step usually means distorting elements.",
-        "  ✔ healthy   ▲ warning   ✖ critical (words and symbols, not colour alone)",
-    ] {
-        lines.push(Line::raw(s));
-    }
-    lines.push(Line::raw(""));
+    let mut cautions = vec![
+        Line::raw(""),
+        Line::styled("Before you stop a run", t.title()),
+    ];
     for c in CAUTIONS {
-        lines.push(Line::styled(format!("  {c}"), t.dim()));
+        cautions.push(Line::styled(format!("  {c}"), t.dim()));
     }
-    let h = lines.len() as u16 + 2;
-    let r = centred(area, 88, h);
+    let mut reading = vec![Line::raw(""), Line::styled("Reading the panels", t.title())];
+    for r in READING {
+        reading.push(Line::raw(format!("  {r}")));
+    }
+    let w = area.width.min(100);
+    let mut lines = keys;
+    lines.extend(cautions);
+    let with_reading: Vec<Line> = lines.iter().cloned().chain(reading).collect();
+    if wrapped_rows(&with_reading, w) + 2 <= area.height {
+        lines = with_reading;
+    }
+    let h = wrapped_rows(&lines, w) + 2;
+    let r = centred(area, w, h);
     f.render_widget(Clear, r);
     f.render_widget(
         Paragraph::new(lines)
@@ -115,8 +132,8 @@ pub fn confirm_stop(f: &mut Frame, area: Rect, s: &AppState, t: &Theme) {
             Span::raw(" or any other key: cancel, nothing is done"),
         ]));
     }
-    let h = lines.len() as u16 + 2;
-    let r = centred(area, 120, h + 2);
+    let w = area.width.min(120);
+    let r = centred(area, w, wrapped_rows(&lines, w) + 2);
     f.render_widget(Clear, r);
     f.render_widget(
         Paragraph::new(lines)

@@ -12,7 +12,7 @@ use crate::parse::roles::Role;
 
 use super::chart::{self, Series, Spec, legend_name};
 use super::format::{num, pct};
-use super::growth::{empty_spec, x_name};
+use super::growth::empty_spec;
 use super::theme::Theme;
 
 /// Fall of the step across the window that is marked as a warning (fraction).
@@ -51,7 +51,11 @@ pub fn chart(f: &mut Frame, area: Rect, s: &AppState, t: &Theme, x_labels: bool)
     };
     let title = Line::from(vec![
         Span::styled(" time step ", t.title()),
-        Span::raw(format!("{} s ", num(s.table.last(col), 3))),
+        Span::raw(format!(
+            "{} {} ",
+            num(s.table.last(col), 3),
+            s.column_unit(col).unwrap_or("s")
+        )),
         Span::styled(
             format!(
                 "trend {} {arrow} ",
@@ -68,7 +72,7 @@ pub fn chart(f: &mut Frame, area: Rect, s: &AppState, t: &Theme, x_labels: bool)
             style: t.series(2),
         }],
         x,
-        x_name: x_name(s),
+        x_time: s.x_is_time(),
         x_labels,
         reference: None,
         empty: "no finite time step yet",
@@ -88,7 +92,10 @@ pub fn probe_chart(f: &mut Frame, area: Rect, s: &AppState, t: &Theme, x_labels:
     let spec = Spec {
         title: Line::from(vec![
             Span::styled(
-                format!(" probe {k}/{n}: {} ", s.column_name(col)),
+                match s.column_unit(col) {
+                    Some(u) => format!(" probe {k}/{n}: {} [{u}] ", s.column_name(col)),
+                    None => format!(" probe {k}/{n}: {} ", s.column_name(col)),
+                },
                 t.title(),
             ),
             Span::styled("(Tab: next) ", t.dim()),
@@ -99,7 +106,7 @@ pub fn probe_chart(f: &mut Frame, area: Rect, s: &AppState, t: &Theme, x_labels:
             style: t.series(3),
         }],
         x,
-        x_name: x_name(s),
+        x_time: s.x_is_time(),
         x_labels,
         reference: None,
         empty: "no finite values in the window",

@@ -137,12 +137,3 @@ pub fn symbol(level: Level) -> &'static str {
         Level::Critical => "✖",
     }
 }
-
-/// Word of a level for the run's state.
-pub fn state_word(level: Level) -> &'static str {
-    match level {
-        Level::Ok => "HEALTHY",
-        Level::Warning => "WARNING",
-        Level::Critical => "CRITICAL",
-    }
-}

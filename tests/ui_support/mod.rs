@@ -41,6 +41,8 @@ pub fn config() -> Config {
         ],
         auto_stop: false,
         retention_rows: 0,
+        // Not the detectors' default, so that the panels are seen to use it.
+        balance_warning: 0.04,
     }
 }
 
@@ -137,6 +139,25 @@ fn evidence(kind: Kind, i: u32) -> Evidence {
     }
 }
 
+/// The detectors' status after row `i`: a confirmed mode once the unstable
+/// one grows, the latest fit's estimate before; each detector's level as its
+/// alarms below raise it.
+fn status(kind: Kind, i: u32) -> Status {
+    let levels = match kind {
+        Kind::Warning if i >= 1_600 => vec![("energy", Level::Warning)],
+        Kind::Critical if i >= 1_900 => {
+            vec![("growth", Level::Critical), ("energy", Level::Critical)]
+        }
+        Kind::Critical if i >= 1_400 => vec![("growth", Level::Warning)],
+        _ => vec![],
+    };
+    Status {
+        evidence: evidence(kind, i),
+        growth_confirmed: kind == Kind::Critical && i > 1_200,
+        levels,
+    }
+}
+
 fn alarm(level: Level, detector: &'static str, line: u64, message: &str) -> Item {
     Item::Alarm(Alarm {
         level,
@@ -196,14 +217,18 @@ pub fn state_with(kind: Kind, config: Config) -> AppState {
         if kind == Kind::Critical && i == 1_900 {
             b.items.push(alarm(
                 Level::Critical,
+                "energy",
+                1_885,
+                "energy balance error +274 % and growing exponentially (energy created)",
+            ));
+            b.items.push(alarm(
+                Level::Critical,
                 "growth",
                 1_890,
                 "growth per step 1.0100 for 700 steps; overflow in 51,000 steps",
             ));
         }
-        b.status = Some(Status {
-            evidence: evidence(kind, i),
-        });
+        b.status = Some(status(kind, i));
         b.arrival_s = Some(batch_no);
         batch_no += 1.0;
         s.update(Msg::Data(Box::new(b)));
