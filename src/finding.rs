@@ -88,6 +88,20 @@ pub struct Evidence {
     /// (Ω_crit/Ω − 1; negative means past the limit).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub stability_margin: Option<f64>,
+    /// The largest step suggested for the growing mode, when the scheme is
+    /// known and the step can be read from the file.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub suggested_dt: Option<SuggestedDt>,
+}
+
+/// A step suggested for a mode growing past the scheme's limit.
+#[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
+pub struct SuggestedDt {
+    /// The step (s): the safety factor times the mode's limit step.
+    pub seconds: f64,
+    /// How it was reached: scheme, limit, the mode's Ω and ω, the step the
+    /// run used, the safety factor, and what the estimate assumes.
+    pub basis: String,
 }
 
 impl Evidence {
@@ -104,6 +118,9 @@ impl Evidence {
         fill(&mut self.forecast_wall_s, other.forecast_wall_s);
         fill(&mut self.onset_time, other.onset_time);
         fill(&mut self.stability_margin, other.stability_margin);
+        if self.suggested_dt.is_none() {
+            self.suggested_dt.clone_from(&other.suggested_dt);
+        }
         self.onset_line = self.onset_line.or(other.onset_line);
     }
 }

@@ -110,6 +110,7 @@ impl Readouts {
             e.growth_rate_per_s = None;
             e.frequency_hz = None;
             e.stability_margin = None;
+            e.suggested_dt = None;
         }
         self.growth_level = if self.growth == Standing::Confirmed {
             let energy = s.level(ENERGY);

@@ -120,6 +120,10 @@ fn state_of(rows: &[[f64; 6]], est: f64, time: impl Fn(usize) -> f64) -> AppStat
             onset_line: Some(u64::MAX),
             onset_time: Some(est),
             stability_margin: Some(est),
+            suggested_dt: Some(rhoscope::finding::SuggestedDt {
+                seconds: est,
+                basis: format!("{est:e}"),
+            }),
         },
         growth_confirmed: true,
         levels: vec![

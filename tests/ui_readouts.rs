@@ -3,7 +3,9 @@
 //! stable never show a growth per step above 1 — on the dashboard, in the
 //! many-run table or in the metrics — and a run whose growth the detectors
 //! alarm on shows it confirmed, at the alarm's level, until it blows up, after
-//! which no forecast is shown.
+//! which no forecast is shown. With the scheme known, a growth alarm says
+//! the largest stable step for its mode, checked against the closed form of
+//! central difference.
 
 use rhoscope::alarm::Alarm;
 use rhoscope::app::{AppState, Batch, Config, Msg};
@@ -143,4 +145,97 @@ fn an_alarmed_growth_reads_confirmed_at_the_alarms_level_and_a_blow_up_ends_the_
         }
     });
     assert!(alarmed && blown, "the case no longer alarms and blows up");
+}
+
+/// Ω = ω·Δt of an undamped central-difference mode growing by `rho` per
+/// step: its characteristic equation λ² − (2 − Ω²)λ + 1 = 0 has the roots ρ
+/// and 1/ρ past the limit, so Ω² = 2 + ρ + 1/ρ (Hughes, The Finite Element
+/// Method, 1987, §9.1, from memory; ρ(2.01) = 1.221301 reproduced from the
+/// amplification matrix).
+fn cd_omega_dt(rho: f64) -> f64 {
+    (2.0 + rho + 1.0 / rho).sqrt()
+}
+
+#[test]
+fn a_known_scheme_gives_the_alarm_a_stable_step_in_the_message_the_json_and_on_screen() {
+    // The clearance-stop chain declares "# scheme: central difference; fixed
+    // step …" and writes its step in a dt column.
+    for case in ["chain-stop-cd", "cd-omega-2.01"] {
+        let dir = tempfile::tempdir().unwrap();
+        let file = dir.path().join("h.txt");
+        std::fs::write(&file, history(case)).unwrap();
+        let out = std::process::Command::new(env!("CARGO_BIN_EXE_rhoscope"))
+            .args(["scan", "--json"])
+            .arg(&file)
+            .output()
+            .unwrap();
+        let report: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+        let alarm = report["alarms"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .find(|a| a["detector"] == "growth" && a["level"] == "critical")
+            .unwrap_or_else(|| panic!("{case}: no growth alarm"));
+        let ev = &alarm["evidence"];
+        let rho = ev["growth_per_step"].as_f64().unwrap();
+        let suggested = ev["suggested_dt"]["seconds"].as_f64().unwrap();
+        let basis = ev["suggested_dt"]["basis"].as_str().unwrap();
+        // The step the run used, from its dt column at the alarm's line.
+        let text = String::from_utf8(history(case)).unwrap();
+        let line = alarm["line"].as_u64().unwrap() as usize;
+        let dt: f64 = text
+            .lines()
+            .nth(line - 1)
+            .unwrap()
+            .split(|c: char| c == ',' || c.is_whitespace())
+            .filter(|f| !f.is_empty())
+            .nth(1)
+            .unwrap()
+            .parse()
+            .unwrap();
+        // 0.9 of the mode's limit 2/ω, with ω = Ω/Δt from the closed form.
+        let expected = 0.9 * 2.0 * dt / cd_omega_dt(rho);
+        // Tolerance: the detector inverts ρ(Ω) by bisection to f64
+        // resolution; the dt column is printed to 9 digits.
+        assert!(
+            ((suggested - expected) / expected).abs() < 1e-6,
+            "{case}: suggested {suggested}, expected {expected}"
+        );
+        assert!(suggested < dt, "{case}");
+        assert!(
+            basis.contains("central-difference") && basis.contains("safety 0.9"),
+            "{basis}"
+        );
+        if case == "cd-omega-2.01" {
+            // Written every step, its mode flips sign every row: aliased.
+            assert!(basis.contains("Nyquist"), "{basis}");
+        }
+        let message = alarm["message"].as_str().unwrap();
+        assert!(message.contains("Remedy (central-difference)"), "{message}");
+        assert!(
+            message.contains("rhoscope limits --scheme central-difference --omega"),
+            "{message}"
+        );
+        // The dashboard shows it in its readouts while the mode is confirmed.
+        let mut shown = false;
+        follow(case, |s, _, _| {
+            if s.readouts.growth == Standing::Confirmed
+                && let Some(d) = &s.readouts.evidence.suggested_dt
+            {
+                shown = true;
+                let mut term =
+                    ratatui::Terminal::new(ratatui::backend::TestBackend::new(200, 60)).unwrap();
+                term.draw(|f| rhoscope::ui::render(s, f)).unwrap();
+                let screen = term.backend().to_string();
+                assert!(
+                    screen.contains(&format!(
+                        "Δt ≤ {}",
+                        rhoscope::ui::format::num(Some(d.seconds), 3)
+                    )),
+                    "{screen}"
+                );
+            }
+        });
+        assert!(shown, "{case}: the dashboard never showed the step");
+    }
 }

@@ -128,7 +128,7 @@ fn evaluate(args: &LimitsArgs) -> anyhow::Result<(LimitsOutput, Option<Element>)
     let omega_crit = schemes::critical_omega(&scheme, zeta).with_context(ctx)?;
     let rho_inf = schemes::rho_inf(&scheme, zeta).with_context(ctx)?;
     let dt_crit = match (omega_crit, omega) {
-        (Some(wc), Some(w)) => Some(wc / w),
+        (Some(wc), Some(w)) => schemes::remedy::limit_step_s(wc, w),
         _ => None,
     };
     let omega_at_dt = match (omega, dt) {

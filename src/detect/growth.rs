@@ -24,9 +24,9 @@ use nalgebra::Complex;
 use super::clock::Clock;
 use super::modes::{self, Analysis, GrowingMode};
 use super::{DetectSettings, Detector, Sample, Shared, Status, forecast};
-use crate::finding::{Evidence, Finding, Level};
+use crate::finding::{Evidence, Finding, Level, SuggestedDt};
 use crate::parse::roles::{Role, RoleMap};
-use crate::schemes::{Scheme, critical_omega, omega_at_phase, omega_at_radius};
+use crate::schemes::{Scheme, critical_omega, omega_at_phase, omega_at_radius, remedy};
 
 /// Window length in outputs (≥ 3× model order; 200 samples suit ranks 3–6).
 pub const WINDOW_ROWS: usize = 200;
@@ -229,6 +229,29 @@ impl Growth {
         (omega > 0.0).then(|| oc / omega - 1.0)
     }
 
+    /// With a known scheme and a readable step, the stable step for a mode
+    /// growing by `rho_step` per step (`phase` radians per row): put in
+    /// `ev.suggested_dt`, and the remedy sentence for the alarm returned.
+    fn remedy(
+        &self,
+        rho_step: f64,
+        phase: f64,
+        clock: &Clock,
+        ev: &mut Evidence,
+    ) -> Option<String> {
+        let (scheme, oc) = self.scheme.as_ref()?;
+        // The step: its column, else simulated time per row over steps per row.
+        let dt = clock
+            .dt
+            .or_else(|| Some(clock.time_per_row? / clock.steps_per_row.filter(|k| *k >= 1.0)?))?;
+        let step = remedy::from_growth(scheme, *oc, rho_step, dt)?;
+        ev.suggested_dt = Some(SuggestedDt {
+            seconds: step.suggested_s,
+            basis: step.basis(scheme, rho_step, remedy::at_nyquist(phase)),
+        });
+        Some(step.sentence(scheme))
+    }
+
     /// Stride after a fit whose growing eigenvalue is not (yet) judged
     /// numerical: the follow stride for a few fits, then doubling.
     fn backoff(&mut self) -> usize {
@@ -351,6 +374,7 @@ impl Growth {
             ..Evidence::default()
         };
         ev.stability_margin = self.margin_of_growth(rho_step);
+        let remedy = self.remedy(rho_step, phase, clock, &mut ev);
         let tpr = clock.time_per_row.filter(|v| *v > 0.0);
         if let Some(tpr) = tpr {
             ev.growth_rate_per_s = Some(rho_out.ln() / tpr);
@@ -431,14 +455,26 @@ impl Growth {
                 level: Level::Critical,
                 line,
                 time: clock.time,
-                message: critical_message(&ev, k, sign_alternating, created),
+                message: critical_message(
+                    &ev,
+                    k,
+                    sign_alternating,
+                    created,
+                    remedy.map(|r| (r, self.first_time)),
+                ),
                 evidence: ev,
             });
         }
     }
 }
 
-fn critical_message(ev: &Evidence, k: f64, alternating: bool, created: bool) -> String {
+fn critical_message(
+    ev: &Evidence,
+    k: f64,
+    alternating: bool,
+    created: bool,
+    remedy: Option<(String, Option<f64>)>,
+) -> String {
     let mut s = String::from("Numerical instability: ");
     s += if alternating {
         "a sign-alternating mode"
@@ -472,6 +508,19 @@ fn critical_message(ev: &Evidence, k: f64, alternating: bool, created: bool) -> 
     s += ".";
     if let Some(t) = ev.onset_time {
         s += &format!(" Restart files written after t = {t:.6e} carry the growing mode.");
+    }
+    // The remedy, and where to resume: before the onset, or from the start
+    // of the segment when the mode grew from there.
+    if let Some((r, segment_start)) = remedy {
+        s += &format!(" {r}");
+        match ev.onset_time {
+            Some(t) if segment_start.is_none_or(|t0| t > t0) => {
+                s += &format!("; resume from a restart written before t = {t:.6e}");
+            }
+            Some(_) => s += "; the mode grows from the start of this run: rerun it from there",
+            None => {}
+        }
+        s += ".";
     }
     s
 }

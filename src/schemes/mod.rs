@@ -18,6 +18,7 @@ pub mod fit;
 pub mod inverse;
 pub mod limit;
 pub mod names;
+pub mod remedy;
 pub mod spectrum;
 
 use std::fmt;

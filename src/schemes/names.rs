@@ -56,8 +56,17 @@ const NEWMARK_MEMBERS: &[(&str, f64, f64)] = &[
     ("newmark linear acceleration", 1.0 / 6.0, 0.5),
 ];
 
-/// The scheme a declaration names, or why it cannot be read.
+/// The scheme a declaration names, or why it cannot be read. A declaration
+/// may go on after a semicolon about other things (`central difference;
+/// fixed step 1e-3 s`): when the whole does not read, its first clause does.
 pub fn from_declaration(text: &str) -> Result<Scheme, String> {
+    match (whole_declaration(text), text.split_once(';')) {
+        (Err(e), Some((first, _))) => whole_declaration(first).map_err(|_| e),
+        (r, _) => r,
+    }
+}
+
+fn whole_declaration(text: &str) -> Result<Scheme, String> {
     let lower = text.trim().to_lowercase();
     // Split the name words from the parameters: the first word holding a
     // digit or an '=' starts the parameters.
@@ -208,6 +217,16 @@ mod tests {
             from_declaration("generalized-alpha rho_inf 0.8"),
             Ok(Scheme::GeneralizedAlpha { rho_inf: 0.8 })
         );
+        // Clauses about other things after a semicolon.
+        assert_eq!(
+            from_declaration("central difference; fixed step 1.1e-2 s; 3 degrees of freedom"),
+            cd
+        );
+        assert_eq!(
+            from_declaration("HHT-alpha alpha=-0.05; fixed step 3.3e-3 s"),
+            Ok(Scheme::Hht { alpha: -0.05 })
+        );
+        assert!(from_declaration("magic; fixed step 1e-3 s").is_err());
     }
 
     #[test]

@@ -13,7 +13,9 @@ use ratatui::style::Style;
 use crate::app::AppState;
 use crate::app::state::{D_BALANCE, D_GROWTH, D_GROWTH_APPROX};
 use crate::finding::Level;
+use crate::parse::roles::Role;
 use crate::readout::{Readouts, Standing};
+use crate::schemes::remedy::at_nyquist;
 
 use super::chart::{self, Series, Spec};
 use super::energy::balance_words;
@@ -186,22 +188,16 @@ pub(crate) fn empty_spec<'a>(title: &'a str, empty: &'a str) -> Spec<'a> {
     }
 }
 
-/// Within this fraction of the rows' Nyquist frequency a mode is read as one
-/// that flips sign from row to row (sampling tolerance, common practice, no source).
-const NYQUIST_FRAC: f64 = 0.02;
-
 /// The fitted frequency; a real eigenvalue has none to speak of, and a mode at
 /// the Nyquist frequency of the rows (`row_interval_s` apart) flips sign every
 /// row — an alias of the step-to-step flip of an explicit scheme past its limit,
 /// not a physical frequency.
 fn mode_words(f_hz: Option<f64>, row_interval_s: Option<f64>, narrow: bool) -> String {
-    let nyquist_hz = row_interval_s
-        .filter(|d| *d > 0.0 && d.is_finite())
-        .map(|d| 0.5 / d);
-    match (f_hz, nyquist_hz) {
+    let row_s = row_interval_s.filter(|d| *d > 0.0 && d.is_finite());
+    match (f_hz, row_s) {
         (Some(f), _) if f.abs() < MONOTONE_HZ && narrow => "monotone".into(),
         (Some(f), _) if f.abs() < MONOTONE_HZ => "0 Hz (monotone)".into(),
-        (Some(f), Some(n)) if (f.abs() - n).abs() <= NYQUIST_FRAC * n => {
+        (Some(f), Some(d)) if at_nyquist(2.0 * std::f64::consts::PI * f * d) => {
             let tail = if narrow {
                 "(flips)"
             } else {
@@ -221,6 +217,32 @@ fn row_interval_s(s: &AppState) -> Option<f64> {
     let (lo, hi) = s.table.x_range()?;
     let rows = s.table.rows();
     (rows > 1).then(|| (hi - lo) / (rows - 1) as f64)
+}
+
+/// The remedy readout: the largest step suggested for the growing mode (with
+/// the step the run uses), or what is missing to give one.
+fn remedy_words(s: &AppState, narrow: bool) -> String {
+    let r = &s.readouts;
+    let now = s
+        .col(Role::StepSize)
+        .and_then(|c| s.table.last(c))
+        .filter(|v| v.is_finite() && *v > 0.0);
+    match (&r.evidence.suggested_dt, now) {
+        (Some(d), _) if narrow => format!("Δt ≤ {} s", num(Some(d.seconds), 3)),
+        (Some(d), Some(now)) => format!(
+            "Δt ≤ {} s (now {} s) · rhoscope limits",
+            num(Some(d.seconds), 3),
+            num(Some(now), 3)
+        ),
+        (Some(d), None) => format!("Δt ≤ {} s · rhoscope limits", num(Some(d.seconds), 3)),
+        (None, _) if r.growth == Standing::Confirmed && s.scheme.is_none() => if narrow {
+            "— give --scheme"
+        } else {
+            "— declare the scheme (--scheme or # scheme:)"
+        }
+        .into(),
+        (None, _) => "—".into(),
+    }
 }
 
 /// The readouts block: one fact per line, label then value. Values come from
@@ -334,6 +356,11 @@ pub fn readouts(f: &mut Frame, area: Rect, s: &AppState, t: &Theme) {
         if narrow { "margin" } else { "stability margin" },
         margin,
         fit(m_lvl),
+    ));
+    rows.push((
+        "stable step",
+        remedy_words(s, narrow),
+        plain(r.growth_level),
     ));
     let lines: Vec<Line> = rows
         .into_iter()

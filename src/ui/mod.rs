@@ -28,7 +28,7 @@ use theme::{Theme, symbol};
 const MIN_W: u16 = 24;
 const MIN_H: u16 = 8;
 /// Height of the readouts block.
-const READOUTS_H: u16 = 8;
+const READOUTS_H: u16 = 9;
 
 /// Draw the whole dashboard.
 pub fn render(s: &AppState, f: &mut Frame) {

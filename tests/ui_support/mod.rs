@@ -134,6 +134,10 @@ fn evidence(kind: Kind, i: u32) -> Evidence {
                 onset_line: growing.then_some(1_202),
                 onset_time: growing.then_some(0.012),
                 stability_margin: growing.then_some(-0.005),
+                suggested_dt: growing.then(|| rhoscope::finding::SuggestedDt {
+                    seconds: 9.0e-6,
+                    basis: "central-difference: limit ω·Δt = 2".into(),
+                }),
             }
         }
     }
