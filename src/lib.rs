@@ -9,6 +9,7 @@
 pub mod act;
 pub mod alarm;
 pub mod app;
+pub mod blind;
 pub mod cli;
 pub mod commands;
 pub mod demo;
