@@ -2,6 +2,8 @@
 #![allow(clippy::unwrap_used)]
 
 mod batch_job;
+mod blind_catalogue;
+mod blind_integrators;
 mod demo_sim;
 mod detect_checks;
 mod detect_eval;

@@ -6,7 +6,7 @@
 use super::chain::{Chain, Law, Shape};
 use super::explicit::{FirstOrder, Method};
 use super::kit::{omega_max, record, zeros};
-use super::sim::{Plan, Q, Stepper};
+use super::sim::{Plan, Q};
 use super::structural::{Cd, Implicit};
 use super::trace::Trace;
 use super::write::{Delim, HeaderStyle, Layout, Num};
@@ -220,7 +220,6 @@ fn energy_check_stop() -> (Trace, Layout) {
         ("total", Q::Total),
     ];
     let t = record(&mut s, &cols, &Plan::new(1, 1e9), &[]);
-    let _ = s.stopped();
     (
         t,
         Layout::new(Delim::Comma, HeaderStyle::Plain).num(Num::General(9)),

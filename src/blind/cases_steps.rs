@@ -257,7 +257,7 @@ fn step_change_crash() -> (Trace, Layout) {
         if n == 3000 {
             s.set_dt(4.0 / w);
         }
-        if n % 3 == 0 {
+        if n.is_multiple_of(3) {
             let flag = s.take_flag();
             let snap = s.snap();
             if rec.row(&snap, flag) && tail.is_none() {

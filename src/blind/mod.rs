@@ -9,6 +9,8 @@
 //! The files of this module are frozen by their SHA-256 in the spec; new
 //! cases go in new files listed there as additions.
 
+#![allow(clippy::needless_range_loop)] // index loops read as the formulas they code
+
 pub mod chain;
 pub mod explicit;
 pub mod kit;
@@ -103,6 +105,9 @@ pub struct Case {
     pub measures: Measures,
     /// Number of data rows.
     pub rows: usize,
+    /// File name extension that fits the layout (`csv`, `tsv`, `jsonl`,
+    /// `txt`).
+    pub extension: &'static str,
 }
 
 /// Every case's spec, in catalogue order.
@@ -123,7 +128,14 @@ pub fn generate(spec: &Spec) -> Case {
     let written = write::write(&trace, &layout);
     let label = label::label(&trace, &written);
     let measures = label::measure(&trace, &written);
+    let extension = match layout.delim {
+        write::Delim::Comma => "csv",
+        write::Delim::Tab => "tsv",
+        write::Delim::Jsonl => "jsonl",
+        _ => "txt",
+    };
     Case {
+        extension,
         name: spec.name,
         class: spec.class,
         intent: spec.intent,

@@ -374,7 +374,7 @@ pub fn record(
     let mut fired = false;
     let mut tail: Option<usize> = None;
     loop {
-        if p.step % stride == 0 {
+        if p.step.is_multiple_of(stride) {
             let values: Vec<f64> = cols.iter().map(|c| c.1.value(p)).collect();
             let bad = values.iter().any(|&v| overflowed(v));
             let past = !fired && p.past_limit();

@@ -195,7 +195,7 @@ pub fn drive(s: &mut dyn Stepper, rec: &mut Recorder, plan: &Plan) -> u64 {
     let mut tail: Option<usize> = None;
     let mut n = 0u64;
     loop {
-        if n % plan.stride == 0 {
+        if n.is_multiple_of(plan.stride) {
             let snap = s.snap();
             let bad = rec.row(&snap, flag)
                 || snap.u.iter().chain(&snap.v).any(|x| !x.is_finite())

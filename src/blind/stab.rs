@@ -191,10 +191,12 @@ impl Cache {
         dt: f64,
         f: impl FnOnce() -> f64,
     ) -> f64 {
-        if let Some((lk, lc, ldt, r)) = &self.last {
-            if lk == k && lc == c && *ldt == dt {
-                return *r;
-            }
+        if let Some((lk, lc, ldt, r)) = &self.last
+            && lk == k
+            && lc == c
+            && *ldt == dt
+        {
+            return *r;
         }
         let r = f();
         self.last = Some((k.clone(), c.clone(), dt, r));

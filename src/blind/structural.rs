@@ -20,6 +20,18 @@ fn accel(chain: &Chain, ev: &[Eval], t: f64, a: &mut [f64]) {
     }
 }
 
+/// The state (u, v) with its books and element forces; time and step
+/// counters left for the caller.
+fn snap_of(chain: &Chain, ledger: &Ledger, u: &[f64], v: &[f64], ev: &[Eval]) -> Snap {
+    Snap {
+        u: u.to_vec(),
+        v: v.to_vec(),
+        books: ledger.books(chain, u, v, ev),
+        forces: ev.iter().map(|e| e.f).collect(),
+        ..Snap::default()
+    }
+}
+
 /// Explicit central difference; damping forces from v(n−½).
 #[derive(Debug, Clone)]
 pub struct Cd {
@@ -150,14 +162,14 @@ impl Stepper for Cd {
             Some(s) => self.chain.courant_step(&self.u).map_or(self.dt, |d| s * d),
             None => self.dt,
         };
-        if let Some(min) = self.dt_min {
-            if !(dt >= min) {
-                self.stop = Some(format!(
-                    "*** stopping: time step {dt:.3e} below the minimum {min:.3e} at t = {:.6e}",
-                    self.t
-                ));
-                return;
-            }
+        if let Some(min) = self.dt_min
+            && (dt < min || dt.is_nan())
+        {
+            self.stop = Some(format!(
+                "*** stopping: time step {dt:.3e} below the minimum {min:.3e} at t = {:.6e}",
+                self.t
+            ));
+            return;
         }
         self.check(dt);
         let n = self.u.len();
@@ -194,16 +206,9 @@ impl Stepper for Cd {
     }
 
     fn snap(&self) -> Snap {
-        Snap {
-            t: self.t,
-            step: self.n,
-            dt: self.dt,
-            iters: 0,
-            u: self.u.clone(),
-            v: self.v.clone(),
-            books: self.ledger.books(&self.chain, &self.u, &self.v, &self.ev),
-            forces: self.ev.iter().map(|e| e.f).collect(),
-        }
+        let mut s = snap_of(&self.chain, &self.ledger, &self.u, &self.v, &self.ev);
+        (s.t, s.step, s.dt) = (self.t, self.n, self.dt);
+        s
     }
 
     fn take_flag(&mut self) -> bool {
@@ -474,16 +479,9 @@ impl Stepper for Implicit {
     }
 
     fn snap(&self) -> Snap {
-        Snap {
-            t: self.t,
-            step: self.n,
-            dt: self.last_dt,
-            iters: self.iters,
-            u: self.u.clone(),
-            v: self.v.clone(),
-            books: self.ledger.books(&self.chain, &self.u, &self.v, &self.ev),
-            forces: self.ev.iter().map(|e| e.f).collect(),
-        }
+        let mut s = snap_of(&self.chain, &self.ledger, &self.u, &self.v, &self.ev);
+        (s.t, s.step, s.dt, s.iters) = (self.t, self.n, self.last_dt, self.iters);
+        s
     }
 
     fn take_flag(&mut self) -> bool {
