@@ -7,6 +7,7 @@ mod blind_integrators;
 mod demo_sim;
 mod detect_checks;
 mod detect_eval;
+mod evaluate_blind;
 mod evaluate_labels;
 mod event_log;
 mod external;

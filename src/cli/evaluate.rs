@@ -11,9 +11,12 @@ and the lead = (crash line − first critical line) / (crash line − onset line
 then the set's totals against the targets.
 
 Sets:
-  catalogue   the labelled demo catalogue (the default)
+  catalogue   the labelled demo catalogue (scored by default)
   variants    the catalogue with twice and three times the output interval
               and other noise seeds (cases the thresholds were not set on)
+  blind       cases written from docs/blind-catalogue.md alone and frozen
+              before the detectors were tuned (scored by default, reported
+              apart, with a breakdown by failure class)
 
 A labelled directory of your own is scored with --labels: a labels.csv whose
 header names `file` (relative to the CSV) and `level` (ok, warning, critical),
@@ -27,6 +30,13 @@ Examples:
   rhoscope evaluate --variants
   rhoscope evaluate --set variants --case chain-stop-cd
   rhoscope evaluate --labels runs/labels.csv
+  rhoscope evaluate --set blind --case md-drift-nve
+  rhoscope evaluate --set blind --write /tmp/blind-cases
+
+--write DIR writes the histories of the one set named by --set (only the
+--case ones, if given) into DIR, created if missing, with a labels.csv that
+--labels reads back; nothing is scored then, and no existing file is
+overwritten.
 
 Exit codes: 0 every set meets its targets, 1 a set misses them, 3 usage error."
 )]
@@ -37,10 +47,14 @@ pub struct EvaluateArgs {
     /// Also score the variants set (same as adding `--set variants`).
     #[arg(long)]
     pub variants: bool,
-    /// Score this set (repeatable; default: catalogue, unless --labels is
-    /// given). See the list below.
+    /// Score this set (repeatable; default: catalogue and blind, unless
+    /// --labels is given). See the list below.
     #[arg(long = "set", value_name = "NAME")]
     pub sets: Vec<String>,
+    /// Write the histories of the set named by --set to DIR with a
+    /// labels.csv, instead of scoring.
+    #[arg(long, value_name = "DIR", conflicts_with_all = ["labels", "variants"])]
+    pub write: Option<std::path::PathBuf>,
     /// Score the labelled histories listed in this labels.csv (repeatable).
     #[arg(long = "labels", value_name = "CSV")]
     pub labels: Vec<std::path::PathBuf>,

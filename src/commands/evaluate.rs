@@ -1,19 +1,29 @@
 //! `rhoscope evaluate`: wiring only — build the labelled sets asked for
 //! ([`crate::evaluate::registry`], and labels files through
-//! [`crate::evaluate::labelled`]), score them, print one table per set.
+//! [`crate::evaluate::labelled`]), score them, print one table per set (and
+//! the blind set's breakdown by class); or write one set as files
+//! ([`crate::evaluate::export`]).
 
-use anyhow::bail;
+use std::fs::OpenOptions;
+use std::io::Write;
+use std::path::Path;
+
+use anyhow::{Context, bail};
 
 use crate::cli::evaluate::EvaluateArgs;
-use crate::evaluate::{self, Filter, Set, SetSpec, labelled, selected};
+use crate::evaluate::{self, Filter, Input, Set, SetSpec, export, labelled, selected};
 use crate::settings::Settings;
 
 /// Run `rhoscope evaluate`; returns the exit code.
 pub fn run(args: EvaluateArgs) -> anyhow::Result<i32> {
     let registry = evaluate::registry();
     let mut names: Vec<&str> = args.sets.iter().map(String::as_str).collect();
+    if args.write.is_some() && names.len() != 1 {
+        bail!("--write needs exactly one --set NAME (the set whose histories to write)");
+    }
     if names.is_empty() && args.labels.is_empty() {
         names.push(evaluate::demo::CATALOGUE);
+        names.push(evaluate::blind::BLIND);
     }
     if args.variants && !names.contains(&evaluate::demo::VARIANTS) {
         names.push(evaluate::demo::VARIANTS);
@@ -52,6 +62,9 @@ pub fn run(args: EvaluateArgs) -> anyhow::Result<i32> {
         }
     }
     let filter: Filter = (!args.cases.is_empty()).then_some(args.cases.as_slice());
+    if let Some(dir) = &args.write {
+        return write_set(&(specs[0].build)(filter)?, dir).map(|_| 0);
+    }
     let mut sets = Vec::with_capacity(specs.len());
     for s in &specs {
         sets.push((s.build)(filter)?);
@@ -69,7 +82,67 @@ pub fn run(args: EvaluateArgs) -> anyhow::Result<i32> {
             text.push('\n');
         }
         text += &scored.text();
+        if scored.name == evaluate::blind::BLIND {
+            text += "\n";
+            text += &evaluate::blind::by_class(&scored);
+        }
     }
     super::scan::print(&text)?;
     Ok(if met { 0 } else { 1 })
+}
+
+/// Create `path` with `bytes`; an existing file (or link) is an error, never
+/// overwritten.
+fn create_new(path: &Path, bytes: &[u8]) -> anyhow::Result<()> {
+    let mut f = OpenOptions::new()
+        .write(true)
+        .create_new(true)
+        .open(path)
+        .with_context(|| {
+            format!(
+                "cannot create '{}' (an existing file is never overwritten: write the set to \
+                 an empty directory)",
+                path.display()
+            )
+        })?;
+    f.write_all(bytes)
+        .and_then(|_| f.sync_all())
+        .with_context(|| format!("writing '{}'", path.display()))
+}
+
+/// Write every case of `set` into `dir` and a labels.csv beside them.
+fn write_set(set: &Set, dir: &Path) -> anyhow::Result<()> {
+    if set.cases.is_empty() {
+        bail!("set '{}' has no case to write", set.name);
+    }
+    std::fs::create_dir_all(dir).with_context(|| format!("creating '{}'", dir.display()))?;
+    let mut rows = Vec::with_capacity(set.cases.len());
+    for c in &set.cases {
+        let bytes = match &c.input {
+            Input::Bytes(b) => std::borrow::Cow::Borrowed(b.as_slice()),
+            Input::Path(p) => std::borrow::Cow::Owned(
+                std::fs::read(p).with_context(|| format!("reading '{}'", p.display()))?,
+            ),
+        };
+        let file = export::file_name(&c.name, &bytes);
+        if rows.iter().any(|(_, f, _)| f == &file) {
+            bail!(
+                "two cases of set '{}' would both be written to '{file}'",
+                set.name
+            );
+        }
+        create_new(&dir.join(&file), &bytes)?;
+        rows.push((c.name.clone(), file, c.label));
+    }
+    create_new(
+        &dir.join("labels.csv"),
+        export::labels_csv(&rows).as_bytes(),
+    )?;
+    eprintln!(
+        "rhoscope evaluate: wrote {} histories of set '{}' and labels.csv to '{}'",
+        rows.len(),
+        set.name,
+        dir.display()
+    );
+    Ok(())
 }

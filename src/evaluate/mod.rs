@@ -4,11 +4,14 @@
 //! one [`Settings`]. [`score_set`] reads every case through the same
 //! [`Pipeline`] as `scan` and scores its alarms ([`score`]); [`registry`]
 //! lists the sets `rhoscope evaluate --set` knows (the demo catalogue and its
-//! variants, in [`demo`]). A new set plugs in by adding a [`SetSpec`] there;
-//! a labelled directory (`labels.csv` beside its histories) is read by
-//! [`labelled`].
+//! variants, in [`demo`]; the blind catalogue, in [`blind`]). A new set plugs
+//! in by adding a [`SetSpec`] there; a labelled directory (`labels.csv`
+//! beside its histories) is read by [`labelled`], and any set is written as
+//! one by [`export`].
 
+pub mod blind;
 pub mod demo;
+pub mod export;
 pub mod labelled;
 pub mod score;
 
@@ -96,6 +99,12 @@ pub fn registry() -> Vec<SetSpec> {
             about: "the catalogue written with twice and three times the output interval, and other noise seeds",
             build: demo::variants,
             names: demo::names,
+        },
+        SetSpec {
+            name: blind::BLIND,
+            about: "the blind catalogue, written from docs/blind-catalogue.md alone and frozen before tuning",
+            build: blind::set,
+            names: blind::names,
         },
     ]
 }
