@@ -14,8 +14,8 @@ use std::path::{Path, PathBuf};
 use std::process::{Command, Stdio};
 use std::time::{Duration, Instant};
 
-use rhoscope::cli::input::InputArgs;
 use rhoscope::fleet::{Fleet, FleetConfig, RunState};
+use rhoscope::settings::ReadSpec;
 
 fn env_num(name: &str, default: f64) -> f64 {
     std::env::var(name)
@@ -132,7 +132,7 @@ fn main() {
         notify,
         ..FleetConfig::default()
     };
-    let mut fleet = Fleet::new(vec![pattern], InputArgs::default(), cfg, t0);
+    let mut fleet = Fleet::new(vec![pattern], ReadSpec::default(), cfg, t0);
     let run_for = |fleet: &mut Fleet, d: f64| {
         let end = Instant::now() + Duration::from_secs_f64(d);
         while Instant::now() < end {

@@ -6,9 +6,8 @@
 use std::io::Write;
 use std::time::Instant;
 
-use rhoscope::commands::scan::scan_path;
-use rhoscope::commands::scan_plot::scan_and_render;
 use rhoscope::report_plot::ImageFormat;
+use rhoscope::scan::{scan_and_render, scan_file};
 use rhoscope::settings::Settings;
 
 fn write_history(path: &std::path::Path, rows: usize) -> std::io::Result<u64> {
@@ -47,7 +46,7 @@ fn main() -> anyhow::Result<()> {
     let mb = bytes as f64 / 1e6;
 
     let t0 = Instant::now();
-    let report = scan_path(&path, &settings, false)?;
+    let report = scan_file(&path, &settings, &mut |_, _| {})?;
     let scan_s = t0.elapsed().as_secs_f64();
     println!(
         "scan            {rows} rows, {mb:.0} MB: {scan_s:.2} s ({:.0} MB/s), status {:?}",
@@ -56,7 +55,7 @@ fn main() -> anyhow::Result<()> {
     );
     for format in [ImageFormat::Svg, ImageFormat::Png] {
         let t0 = Instant::now();
-        let (_, image) = scan_and_render(&path, &settings, false, format)?;
+        let (_, image) = scan_and_render(&path, &settings, &mut |_, _| {}, format)?;
         let s = t0.elapsed().as_secs_f64();
         println!(
             "scan --plot {:<4}{rows} rows: {s:.2} s ({:.2}× scan alone), image {} kB",

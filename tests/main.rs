@@ -27,6 +27,7 @@ mod real_solvers;
 mod report_plot;
 mod scan_cli;
 mod shell_cli;
+mod structure;
 mod tmux_support;
 mod ui_actions;
 mod ui_dashboard;

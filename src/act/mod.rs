@@ -1,12 +1,14 @@
 //! Actions that stop a run, for `guard` and the dashboard: a stop file created
 //! atomically, a signal to a process verified by its start time, a shell command
 //! with a time limit; the [`Escalation`] that fires them in order, each at most
-//! once; and the [`EventLog`] that records every alarm and action. An alarm is
+//! once, built from the configured actions by [`plan`]; and the [`EventLog`]
+//! that records every alarm and action. An alarm is
 //! advice: these only do what the user configured, and say what they did.
 
 mod command;
 mod escalation;
 mod log;
+pub mod plan;
 mod process;
 mod stopfile;
 

@@ -6,6 +6,9 @@ use std::time::Duration;
 
 use clap::Args;
 
+use crate::settings::actions::ActionSettings;
+pub use crate::settings::actions::parse_duration;
+
 /// Actions taken on the first critical alarm, in this order as an escalation:
 /// stop file, then signal, then command.
 #[derive(Debug, Clone, Default, Args)]
@@ -42,46 +45,18 @@ pub struct ActionArgs {
     pub dry_run: bool,
 }
 
-/// Read a duration: a number with a unit `ms`, `s`, `m` or `h` (`500ms`, `3s`,
-/// `2m`, `1.5h`); a bare number is seconds.
-pub fn parse_duration(text: &str) -> Result<Duration, String> {
-    let t = text.trim();
-    let split = t
-        .find(|c: char| !(c.is_ascii_digit() || c == '.'))
-        .unwrap_or(t.len());
-    let (num, unit) = t.split_at(split);
-    let value: f64 = num
-        .parse()
-        .map_err(|_| format!("'{text}' is not a duration (try 500ms, 3s, 2m, 1h)"))?;
-    let scale_s = match unit.trim() {
-        "ms" => 1e-3,
-        "" | "s" => 1.0,
-        "m" | "min" => 60.0,
-        "h" => 3600.0,
-        other => {
-            return Err(format!(
-                "unknown unit '{other}' in '{text}' (use ms, s, m or h)"
-            ));
+impl ActionArgs {
+    /// The actions these flags ask for (`--pid` apart: it names the process
+    /// they act on, not an action).
+    pub fn settings(&self) -> ActionSettings {
+        ActionSettings {
+            touch: self.touch.clone(),
+            signal: self.signal.clone(),
+            run: self.run.clone(),
+            run_limit: self.run_limit,
+            grace: self.grace,
+            on_warning: self.on_warning,
+            dry_run: self.dry_run,
         }
-    };
-    Duration::try_from_secs_f64(value * scale_s)
-        .map_err(|_| format!("'{text}' is not a usable duration"))
-}
-
-#[cfg(test)]
-mod tests {
-    #![allow(clippy::unwrap_used)]
-    use super::*;
-
-    #[test]
-    fn durations_in_the_usual_units() {
-        assert_eq!(parse_duration("500ms").unwrap(), Duration::from_millis(500));
-        assert_eq!(parse_duration("3s").unwrap(), Duration::from_secs(3));
-        assert_eq!(parse_duration("3").unwrap(), Duration::from_secs(3));
-        assert_eq!(parse_duration("2m").unwrap(), Duration::from_secs(120));
-        assert_eq!(parse_duration("1.5h").unwrap(), Duration::from_secs(5400));
-        assert!(parse_duration("3 weeks").is_err());
-        assert!(parse_duration("fast").is_err());
-        assert!(parse_duration("").is_err());
     }
 }

@@ -5,6 +5,9 @@ use std::path::PathBuf;
 
 use clap::{Args, ValueEnum};
 
+use crate::parse::Delimiter;
+use crate::settings::ReadSpec;
+
 /// How to read the history file.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
 pub enum DelimiterArg {
@@ -45,4 +48,25 @@ pub struct InputArgs {
     /// Sign with which an energy term enters the balance, e.g. --sign external_work=-1.
     #[arg(long = "sign", value_name = "TERM=SIGN")]
     pub signs: Vec<String>,
+}
+
+impl InputArgs {
+    /// How these flags ask for the history to be read.
+    pub fn read_spec(&self) -> ReadSpec {
+        ReadSpec {
+            config: self.config.clone(),
+            no_config: self.no_config,
+            delimiter: self.delimiter.map(|d| match d {
+                DelimiterArg::Comma => Delimiter::Byte(b','),
+                DelimiterArg::Semicolon => Delimiter::Byte(b';'),
+                DelimiterArg::Tab => Delimiter::Byte(b'\t'),
+                DelimiterArg::Whitespace => Delimiter::Whitespace,
+            }),
+            jsonl: self.jsonl,
+            pattern: self.pattern.clone(),
+            scheme: self.scheme.clone(),
+            roles: self.roles.clone(),
+            signs: self.signs.clone(),
+        }
+    }
 }

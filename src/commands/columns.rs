@@ -63,7 +63,7 @@ impl Sink for FirstColumns {
 
 /// Run `rhoscope columns`; returns the exit code.
 pub fn run(args: ColumnsArgs) -> anyhow::Result<i32> {
-    let settings = Settings::load(&args.input, &args.file)?;
+    let settings = Settings::load(&args.input.read_spec(), &args.file)?;
     for note in &settings.notes {
         eprintln!("rhoscope: {note}");
     }
@@ -89,7 +89,7 @@ pub fn run(args: ColumnsArgs) -> anyhow::Result<i32> {
         t.push_str(&notes(&sink, pipeline.scheme_note()));
         t
     };
-    super::scan::print(&text)?;
+    super::out::print(&text)?;
     Ok(0)
 }
 

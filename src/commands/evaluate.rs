@@ -87,7 +87,7 @@ pub fn run(args: EvaluateArgs) -> anyhow::Result<i32> {
             text += &evaluate::blind::by_class(&scored);
         }
     }
-    super::scan::print(&text)?;
+    super::out::print(&text)?;
     Ok(if met { 0 } else { 1 })
 }
 

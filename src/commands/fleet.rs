@@ -92,7 +92,7 @@ pub fn run(args: FleetArgs) -> anyhow::Result<i32> {
         rescan_interval: args.rescan,
         ..FleetConfig::default()
     };
-    let mut fleet = Fleet::new(args.files.clone(), args.input.clone(), cfg, t0);
+    let mut fleet = Fleet::new(args.files.clone(), args.input.read_spec(), cfg, t0);
     let ctx_at = |fleet: &Fleet, now: Instant| Context {
         now_s: fleet.secs(now),
         stall_after_s: args.stall_after.as_secs_f64(),

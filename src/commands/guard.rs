@@ -1,165 +1,24 @@
-//! `rhoscope guard`: wiring only. Validates the action flags (and a named
-//! configuration's `[actions]` table) into an escalation, opens the event log,
-//! follows the file through the shared pipeline, and maps the end to an exit code.
+//! `rhoscope guard`: wiring only. Turns the action flags over a named
+//! configuration's `[actions]` into an escalation ([`crate::act::plan`]),
+//! opens the event log, follows the file through the shared pipeline
+//! ([`crate::guard`]), and maps the end to an exit code.
 
-use std::path::Path;
 use std::time::Duration;
 
 use anyhow::{Context, bail};
 
-use crate::act::Escalation;
-use crate::act::{ActionSpec, EscalationConfig, EventLog, ProcessId, parse_signal};
-use crate::cli::actions::{ActionArgs, parse_duration};
+use crate::act::plan::{check_action_outputs, escalation};
+use crate::act::{ActionSpec, Escalation, EventLog};
 use crate::cli::follow::POLL_DEFAULT;
 use crate::cli::guard::GuardArgs;
 use crate::guard::{End, SuperviseOptions, supervise};
-use crate::outfile::{Output, OutputKind, Watched, check_outputs};
 use crate::pipeline::Pipeline;
 use crate::settings::Settings;
 use crate::source::{FollowConfig, Follower};
 
-/// Default wait between escalation steps.
-pub const DEFAULT_GRACE: Duration = Duration::from_secs(300);
-/// Default time limit of a `--run` command.
-pub const DEFAULT_RUN_LIMIT: Duration = Duration::from_secs(120);
-
-/// Keys accepted in the `[actions]` table of a configuration named with `--config`.
-const TABLE_KEYS: [&str; 7] = [
-    "touch",
-    "signal",
-    "run",
-    "run_limit",
-    "grace",
-    "on_warning",
-    "dry_run",
-];
-
-/// Flags over the `[actions]` table: one validated set of action arguments.
-fn merge_table(args: &ActionArgs, table: Option<&toml::Table>) -> anyhow::Result<ActionArgs> {
-    let mut a = args.clone();
-    let Some(t) = table else {
-        return Ok(a);
-    };
-    for key in t.keys() {
-        if !TABLE_KEYS.contains(&key.as_str()) {
-            bail!(
-                "unknown key '{key}' in [actions] (known: {})",
-                TABLE_KEYS.join(", ")
-            );
-        }
-    }
-    let text = |k: &str| -> anyhow::Result<Option<String>> {
-        match t.get(k) {
-            None => Ok(None),
-            Some(toml::Value::String(s)) => Ok(Some(s.clone())),
-            Some(v) => bail!("[actions] {k} must be a string, not '{v}'"),
-        }
-    };
-    let flag = |k: &str| -> anyhow::Result<bool> {
-        match t.get(k) {
-            None => Ok(false),
-            Some(toml::Value::Boolean(b)) => Ok(*b),
-            Some(v) => bail!("[actions] {k} must be true or false, not '{v}'"),
-        }
-    };
-    let dur = |k: &str| -> anyhow::Result<Option<Duration>> {
-        text(k)?
-            .map(|s| parse_duration(&s).map_err(|e| anyhow::anyhow!("[actions] {k}: {e}")))
-            .transpose()
-    };
-    a.touch = a.touch.or(text("touch")?.map(Into::into));
-    a.signal = a.signal.or(text("signal")?);
-    a.run = a.run.or(text("run")?);
-    a.run_limit = a.run_limit.or(dur("run_limit")?);
-    a.grace = a.grace.or(dur("grace")?);
-    a.on_warning |= flag("on_warning")?;
-    a.dry_run |= flag("dry_run")?;
-    Ok(a)
-}
-
-/// Validate action arguments into an escalation (stop file → signal → command)
-/// and the watched process. Shared with `watch`, which arms the same actions.
-pub fn escalation_from_args(
-    args: &ActionArgs,
-    table: Option<&toml::Table>,
-    file: &Path,
-) -> anyhow::Result<(EscalationConfig, Option<ProcessId>)> {
-    let a = merge_table(args, table)?;
-    let pid = match a.pid {
-        Some(p) => Some(ProcessId::capture(p).with_context(|| format!("--pid '{p}'"))?),
-        None => None,
-    };
-    let mut actions = Vec::new();
-    if let Some(p) = &a.touch {
-        actions.push(ActionSpec::Touch(p.clone()));
-    }
-    if let Some(s) = &a.signal {
-        let signal = parse_signal(s).map_err(|e| anyhow::anyhow!("--signal: {e}"))?;
-        let Some(target) = pid else {
-            bail!("--signal '{s}' needs --pid: the process to signal");
-        };
-        actions.push(ActionSpec::Signal { signal, target });
-    }
-    if let Some(c) = &a.run {
-        if c.trim().is_empty() {
-            bail!("--run: the command is empty");
-        }
-        actions.push(ActionSpec::Run {
-            command: c.clone(),
-            time_limit: a.run_limit.unwrap_or(DEFAULT_RUN_LIMIT),
-        });
-    }
-    let cfg = EscalationConfig {
-        actions,
-        grace: a.grace.unwrap_or(DEFAULT_GRACE),
-        on_warning: a.on_warning,
-        dry_run: a.dry_run,
-        file: file.to_path_buf(),
-    };
-    Ok((cfg, pid))
-}
-
-/// Refuse, before anything is followed, a stop file or event log that is the
-/// history (or that are one file between them); see [`check_outputs`].
-pub fn check_action_outputs(
-    file: &Path,
-    args: &ActionArgs,
-    cfg: &EscalationConfig,
-    events: Option<&Path>,
-) -> anyhow::Result<()> {
-    let touch_flag = if args.touch.is_some() {
-        "--touch"
-    } else {
-        "[actions] touch"
-    };
-    let mut outputs = Vec::new();
-    for a in &cfg.actions {
-        if let ActionSpec::Touch(p) = a {
-            outputs.push(Output {
-                flag: touch_flag,
-                path: p,
-                kind: OutputKind::Replaced,
-            });
-        }
-    }
-    if let Some(p) = events {
-        outputs.push(Output {
-            flag: "--events",
-            path: p,
-            kind: OutputKind::Appended,
-        });
-    }
-    let watched = Watched {
-        files: &[file],
-        patterns: &[],
-    };
-    check_outputs(&watched, &outputs)?;
-    Ok(())
-}
-
 /// Run `rhoscope guard`; returns the exit code.
 pub fn run(args: GuardArgs) -> anyhow::Result<i32> {
-    let settings = Settings::load(&args.input, &args.file)?;
+    let settings = Settings::load(&args.input.read_spec(), &args.file)?;
     if let Some(why) = crate::source::not_followable(&args.file) {
         bail!("{why}");
     }
@@ -167,8 +26,10 @@ pub fn run(args: GuardArgs) -> anyhow::Result<i32> {
         std::fs::File::open(&args.file)
             .with_context(|| format!("cannot read '{}'", args.file.display()))?;
     }
-    let (cfg, pid) = escalation_from_args(&args.actions, settings.actions.as_ref(), &args.file)?;
-    check_action_outputs(&args.file, &args.actions, &cfg, args.events.as_deref())?;
+    let actions = args.actions.settings().over(settings.actions.as_ref());
+    let (cfg, pid) = escalation(&actions, args.actions.pid, &args.file)?;
+    let touch_from_flag = args.actions.touch.is_some();
+    check_action_outputs(&args.file, touch_from_flag, &cfg, args.events.as_deref())?;
     let mut log = EventLog::open(args.events.as_deref(), !args.quiet)?;
     for n in &settings.notes {
         log.note(n);

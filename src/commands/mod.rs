@@ -7,6 +7,7 @@ pub mod evaluate;
 pub mod fleet;
 pub mod guard;
 pub mod limits;
+mod out;
 pub mod scan;
 pub mod scan_plot;
 pub mod shell;
@@ -35,6 +36,7 @@ pub fn run_from_env() -> i32 {
         Command::Columns(a) => columns::run(a),
         Command::Limits(a) => limits::run(*a),
         Command::Guard(a) => guard::run(a),
+        Command::Watch(a) if watch_fleet::is_fleet(&a) => watch_fleet::run(a),
         Command::Watch(a) => watch::run(a),
         Command::Demo(a) => demo::run(a),
         Command::Fleet(a) => fleet::run(a),

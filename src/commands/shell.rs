@@ -18,13 +18,13 @@ pub fn completions(args: CompletionsArgs) -> anyhow::Result<i32> {
     };
     let mut out = Vec::new();
     clap_complete::generate(target, &mut Cli::command(), "rhoscope", &mut out);
-    super::scan::write_stdout(&out)?;
+    super::out::write_stdout(&out)?;
     Ok(0)
 }
 
 /// Run `rhoscope man`; returns the exit code.
 pub fn man(_args: ManArgs) -> anyhow::Result<i32> {
-    super::scan::print(&man_page()?)?;
+    super::out::print(&man_page()?)?;
     Ok(0)
 }
 

@@ -11,6 +11,7 @@ use std::time::{Duration, Instant};
 
 use anyhow::{Context, bail};
 
+use crate::act::plan::{check_action_outputs, escalation};
 use crate::act::{ActionSpec, Escalation, EscalationConfig, EventLog, ProcessId};
 use crate::app::feed::Feed;
 use crate::app::run::{Pacing, Ticker};
@@ -18,7 +19,6 @@ use crate::app::stopper::{Armed, Stopper, TICK};
 use crate::app::{AppState, Config, StopState};
 use crate::cli::follow::POLL_DEFAULT;
 use crate::cli::watch::WatchArgs;
-use crate::commands::guard::{check_action_outputs, escalation_from_args};
 use crate::finding::Level;
 use crate::settings::Settings;
 use crate::source::{FollowConfig, Follower};
@@ -75,9 +75,6 @@ pub fn colour_allowed() -> bool {
 /// Run `rhoscope watch`; returns the exit code.
 pub fn run(args: WatchArgs) -> anyhow::Result<i32> {
     tui::install_panic_hook();
-    if super::watch_fleet::is_fleet(&args) {
-        return super::watch_fleet::run(args);
-    }
     if let Some(why) = crate::source::not_followable(&args.file) {
         bail!("{why}");
     }
@@ -86,9 +83,11 @@ pub fn run(args: WatchArgs) -> anyhow::Result<i32> {
     {
         bail!("--end-time '{t}' must be a positive number of seconds");
     }
-    let settings = Settings::load(&args.input, &args.file)?;
-    let (cfg, pid) = escalation_from_args(&args.actions, settings.actions.as_ref(), &args.file)?;
-    check_action_outputs(&args.file, &args.actions, &cfg, args.events.as_deref())?;
+    let settings = Settings::load(&args.input.read_spec(), &args.file)?;
+    let actions = args.actions.settings().over(settings.actions.as_ref());
+    let (cfg, pid) = escalation(&actions, args.actions.pid, &args.file)?;
+    let touch_from_flag = args.actions.touch.is_some();
+    check_action_outputs(&args.file, touch_from_flag, &cfg, args.events.as_deref())?;
     let log = EventLog::open(args.events.as_deref(), false)
         .with_context(|| "cannot open the event log".to_string())?;
     watch(args, settings, cfg, pid, log)

@@ -27,7 +27,7 @@ type Snapshot = Arc<Mutex<(u64, Vec<RunRow>, f64)>>;
 
 /// True when `watch` was given several files or a pattern.
 pub fn is_fleet(args: &WatchArgs) -> bool {
-    !args.more.is_empty() || crate::fleet::glob::has_wildcard(&args.file.to_string_lossy())
+    !args.more.is_empty() || crate::glob::has_wildcard(&args.file.to_string_lossy())
 }
 
 struct Follow {
@@ -70,6 +70,7 @@ impl Follow {
 
 /// Run the fleet view; returns the exit code (0 after quitting).
 pub fn run(args: WatchArgs) -> anyhow::Result<i32> {
+    tui::install_panic_hook();
     let a = &args.actions;
     if a.touch.is_some() || a.signal.is_some() || a.run.is_some() || a.pid.is_some() {
         bail!(
@@ -101,7 +102,7 @@ pub fn run(args: WatchArgs) -> anyhow::Result<i32> {
         notify: !args.follow.no_notify,
         ..FleetConfig::default()
     };
-    let fleet = Fleet::new(patterns.clone(), args.input.clone(), cfg, t0);
+    let fleet = Fleet::new(patterns.clone(), args.input.read_spec(), cfg, t0);
     let snap: Snapshot = Arc::new(Mutex::new((0, Vec::new(), 0.0)));
     let follow = Follow::spawn(fleet, Arc::clone(&snap));
     let mut view = FleetView::new(

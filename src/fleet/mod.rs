@@ -4,9 +4,8 @@
 //! stalled — and the worst-first order in which to show them. The rows are
 //! plain data updated from the pipeline's output ([`RunRow`] is a
 //! [`Sink`]); following the files is [`tracker`]'s job, finding them is
-//! [`glob`]'s, and the shared kernel notifications are [`hint`]'s.
+//! [`crate::glob`]'s, and the shared kernel notifications are [`hint`]'s.
 
-pub mod glob;
 pub mod hint;
 pub mod tracker;
 

@@ -17,15 +17,14 @@ use std::ffi::OsString;
 use std::path::{Path, PathBuf};
 use std::time::{Duration, Instant};
 
-use crate::cli::input::InputArgs;
 use crate::pipeline::Pipeline;
 use crate::pipeline::drive::Follow;
-use crate::settings::Settings;
+use crate::settings::{ReadSpec, Settings};
 use crate::source::{FollowConfig, Follower};
 
 use super::RunRow;
-use super::glob::{Found, expand};
 use super::hint::SharedHint;
+use crate::glob::{Found, expand};
 
 /// How the fleet is followed.
 #[derive(Debug, Clone)]
@@ -82,7 +81,7 @@ struct Sched {
 /// The followed runs; see the module documentation.
 pub struct Fleet {
     patterns: Vec<String>,
-    input: InputArgs,
+    input: ReadSpec,
     cfg: FleetConfig,
     runs: Vec<Run>,
     sched: Vec<Sched>,
@@ -112,7 +111,7 @@ impl Fleet {
     /// Follow the files named by `patterns` (plain paths or shell patterns),
     /// reading each with the settings `input` gives (and the `rhoscope.toml`
     /// beside it). Times in the rows are seconds since `t0`.
-    pub fn new(patterns: Vec<String>, input: InputArgs, cfg: FleetConfig, t0: Instant) -> Self {
+    pub fn new(patterns: Vec<String>, input: ReadSpec, cfg: FleetConfig, t0: Instant) -> Self {
         let hint = if cfg.notify { SharedHint::new() } else { None };
         let mut fleet = Self {
             patterns,
@@ -378,7 +377,7 @@ mod tests {
         };
         let t0 = Instant::now();
         let pattern = format!("{}/*/history.csv", dir.path().display());
-        let mut fleet = Fleet::new(vec![pattern], InputArgs::default(), cfg, t0);
+        let mut fleet = Fleet::new(vec![pattern], ReadSpec::default(), cfg, t0);
         assert_eq!(fleet.len(), 1);
         std::thread::sleep(Duration::from_millis(5));
         fleet.step(Instant::now());
@@ -426,7 +425,7 @@ mod tests {
         };
         let t0 = Instant::now();
         let pattern = format!("{}/*.csv", dir.path().display());
-        let mut fleet = Fleet::new(vec![pattern], InputArgs::default(), cfg, t0);
+        let mut fleet = Fleet::new(vec![pattern], ReadSpec::default(), cfg, t0);
         assert_eq!(fleet.step(t0), 1, "one run due at the start");
         assert_eq!(fleet.step(t0 + Duration::from_millis(4_500)), 4);
         assert_eq!(fleet.step(t0 + Duration::from_millis(9_999)), 5);
@@ -451,7 +450,7 @@ mod tests {
         };
         let t0 = Instant::now();
         let pattern = format!("{}/*.csv", dir.path().display());
-        let mut fleet = Fleet::new(vec![pattern], InputArgs::default(), cfg, t0);
+        let mut fleet = Fleet::new(vec![pattern], ReadSpec::default(), cfg, t0);
         if !fleet.notified() {
             eprintln!("skipped: no kernel notifications here");
             return;

@@ -12,7 +12,7 @@ use std::path::{Path, PathBuf};
 
 use thiserror::Error;
 
-use crate::fleet::glob;
+use crate::glob;
 
 /// Most links followed by hand when resolving a dangling one (as the kernel's
 /// own limit on nested links, order of magnitude: common practice, no source).

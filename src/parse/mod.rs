@@ -9,6 +9,7 @@ pub mod delimited;
 pub mod header;
 pub mod infer;
 pub mod jsonl;
+mod kinds;
 pub mod number;
 pub mod pattern;
 pub mod reader;

@@ -6,7 +6,7 @@
 //! A name that holds any word outside the energy vocabulary (`contact_force`,
 //! `potential_drop`, `plastic strain`) is not an energy term. Pure.
 
-use super::roles::{EnergyTerm, Role};
+use super::kinds::{EnergyTerm, Role};
 
 /// Lower-case words of a column name: units are already split off; `_`, `-`,
 /// `.`, `/` and spaces separate words.

@@ -1,4 +1,5 @@
-//! Which files belong to the fleet: shell-style patterns (`runs/*/history.csv`)
+//! Which files a pattern names (the runs of a fleet, the outputs a command
+//! must not overwrite): shell-style patterns (`runs/*/history.csv`)
 //! matched component by component — `*` any run of characters, `?` one
 //! character, `[abc]`, `[a-z]` and `[!abc]` one of a set; a leading dot is
 //! matched only by a pattern that starts with one, as in a shell. [`expand`]

@@ -1,8 +1,16 @@
-//! Command line + `rhoscope.toml` → one validated [`Settings`], the only
-//! configuration that domain code sees. Flags win over the configuration file;
-//! unknown keys in the file are an error naming the key. Guard actions (commands,
-//! signals) are taken only from a file the user names with `--config`, never from
-//! a `rhoscope.toml` that happens to lie beside someone's history.
+//! A [`ReadSpec`] (what the user asked, from the command line) + `rhoscope.toml`
+//! → one validated [`Settings`], the only configuration that domain code sees.
+//! The spec wins over the configuration file; unknown keys in the file are an
+//! error naming the key. Guard actions (commands, signals) are taken only from
+//! a file the user names with `--config`, never from a `rhoscope.toml` that
+//! happens to lie beside someone's history; they are read into typed
+//! [`ActionSettings`] (`actions.rs`).
+
+pub mod actions;
+mod spec;
+
+pub use actions::ActionSettings;
+pub use spec::ReadSpec;
 
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
@@ -10,7 +18,6 @@ use std::path::{Path, PathBuf};
 use anyhow::{Context, bail};
 use serde::Deserialize;
 
-use crate::cli::input::{DelimiterArg, InputArgs};
 use crate::detect::DetectSettings;
 use crate::parse::roles::{EnergyTerm, Role, RoleRules};
 use crate::parse::{Delimiter, Format, ParseOptions};
@@ -27,9 +34,9 @@ pub struct Settings {
     pub roles: RoleRules,
     /// Detector thresholds.
     pub detect: DetectSettings,
-    /// The `[actions]` table of a configuration named with `--config`, unvalidated
-    /// here: the guard validates it. Always `None` for a file found beside the history.
-    pub actions: Option<toml::Table>,
+    /// The `[actions]` of a configuration named with `--config`. Always `None`
+    /// for a file found beside the history.
+    pub actions: Option<ActionSettings>,
     /// The configuration file that was read, if any.
     pub config_file: Option<PathBuf>,
     /// Things the user should know (e.g. ignored actions); printed on stderr by commands.
@@ -46,6 +53,8 @@ struct ConfigFile {
     /// Energy term key → sign (+1 or −1).
     signs: Option<BTreeMap<String, f64>>,
     thresholds: Option<ThresholdSection>,
+    /// Read into [`ActionSettings`] only from a named file: one found beside
+    /// the history is not checked further.
     actions: Option<toml::Table>,
 }
 
@@ -79,9 +88,9 @@ pub fn beside_note(path: &Path) -> String {
 }
 
 impl Settings {
-    /// Settings for reading `history` with these flags: the named `--config`, else
-    /// `rhoscope.toml` beside the history (unless `--no-config`), then the flags.
-    pub fn load(input: &InputArgs, history: &Path) -> anyhow::Result<Settings> {
+    /// Settings for reading `history` as `input` asks: the named `--config`, else
+    /// `rhoscope.toml` beside the history (unless `--no-config`), then the spec.
+    pub fn load(input: &ReadSpec, history: &Path) -> anyhow::Result<Settings> {
         let mut s = Settings::default();
         let (path, named) = match &input.config {
             Some(p) => (Some(p.clone()), true),
@@ -104,7 +113,7 @@ impl Settings {
             }
             s.config_file = Some(path);
         }
-        s.apply_flags(input)?;
+        s.apply_spec(input)?;
         Ok(s)
     }
 
@@ -163,7 +172,7 @@ impl Settings {
             }
         }
         match (cfg.actions, named) {
-            (Some(a), true) => self.actions = Some(a),
+            (Some(_), true) => self.actions = ActionSettings::from_config_text(text)?,
             (Some(_), false) => self.notes.push(format!(
                 "[actions] in a {CONFIG_BESIDE} found beside the history are ignored; \
                  name the file with --config to use them"
@@ -173,19 +182,14 @@ impl Settings {
         Ok(())
     }
 
-    /// Apply the command-line flags (they win over the file).
-    pub fn apply_flags(&mut self, input: &InputArgs) -> anyhow::Result<()> {
+    /// Apply what the spec asks (it wins over the file).
+    pub fn apply_spec(&mut self, input: &ReadSpec) -> anyhow::Result<()> {
         if input.jsonl {
             self.parse.format = Format::JsonLines;
         } else if let Some(p) = &input.pattern {
             self.parse.format = Format::Pattern(compile(p).context("--pattern")?);
         } else if let Some(d) = input.delimiter {
-            self.parse.format = Format::Delimited(match d {
-                DelimiterArg::Comma => Delimiter::Byte(b','),
-                DelimiterArg::Semicolon => Delimiter::Byte(b';'),
-                DelimiterArg::Tab => Delimiter::Byte(b'\t'),
-                DelimiterArg::Whitespace => Delimiter::Whitespace,
-            });
+            self.parse.format = Format::Delimited(d);
         }
         if let Some(text) = &input.scheme {
             self.detect.scheme = Some(scheme_key(text).context("--scheme")?);
@@ -306,14 +310,23 @@ mod tests {
 
     #[test]
     fn actions_only_from_named_file() {
-        let text = "[actions]\nstop_file = \"STOP\"\n";
+        let text = "[actions]\ntouch = \"STOP\"\n";
         let mut beside = Settings::default();
         beside.apply_toml(text, false).unwrap();
         assert!(beside.actions.is_none());
         assert_eq!(beside.notes.len(), 1);
         let mut named = Settings::default();
         named.apply_toml(text, true).unwrap();
-        assert!(named.actions.is_some());
+        assert_eq!(
+            named.actions.unwrap().touch,
+            Some(std::path::PathBuf::from("STOP"))
+        );
+        // A named file's [actions] are checked; a file beside the history's
+        // are not read at all, so a mistake there stops nothing.
+        let wrong = "[actions]\nstop_file = \"STOP\"\n";
+        let e = Settings::default().apply_toml(wrong, true).unwrap_err();
+        assert!(format!("{e:#}").contains("stop_file"), "{e:#}");
+        Settings::default().apply_toml(wrong, false).unwrap();
     }
 
     #[test]
