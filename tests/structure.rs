@@ -17,6 +17,7 @@ const LAYERS: &[&str] = &[
     "schemes",
     "parse",
     "detect",
+    "readout",
     "demo",
     "source",
     "glob",
@@ -49,6 +50,11 @@ const BACK_UP: &[(&str, &str, &str)] = &[(
 
 /// The longest a source file may be.
 const MAX_LINES: usize = 600;
+
+/// Files over the limit today, each being split by the module's owner. A file
+/// listed here that is back within the limit fails the test, so the list only
+/// shrinks.
+const OVER_LIMIT_NOW: &[&str] = &["detect/growth.rs"];
 
 /// A module path inside the crate, e.g. `["pipeline", "drive"]`.
 type ModPath = Vec<String>;
@@ -534,16 +540,30 @@ fn top_modules_keep_their_order_with_at_most_two_arrows_back_up() {
 #[test]
 fn no_source_file_is_over_the_line_limit() {
     let src = Path::new(env!("CARGO_MANIFEST_DIR")).join("src");
-    let long: Vec<String> = rust_files(&src)
+    let counted: Vec<(String, usize)> = rust_files(&src)
         .iter()
-        .map(|f| (f, std::fs::read_to_string(f).unwrap().lines().count()))
-        .filter(|(_, n)| *n > MAX_LINES)
-        .map(|(f, n)| format!("{} ({n} lines)", f.display()))
+        .map(|f| {
+            let name = f.strip_prefix(&src).unwrap().to_string_lossy().into_owned();
+            (name, std::fs::read_to_string(f).unwrap().lines().count())
+        })
+        .collect();
+    let long: Vec<String> = counted
+        .iter()
+        .filter(|(f, n)| *n > MAX_LINES && !OVER_LIMIT_NOW.contains(&f.as_str()))
+        .map(|(f, n)| format!("src/{f} ({n} lines)"))
         .collect();
     assert!(
         long.is_empty(),
         "files over {MAX_LINES} lines:\n{}",
         long.join("\n")
+    );
+    let back_within: Vec<&&str> = OVER_LIMIT_NOW
+        .iter()
+        .filter(|f| counted.iter().any(|(g, n)| g == **f && *n <= MAX_LINES))
+        .collect();
+    assert!(
+        back_within.is_empty(),
+        "within the limit again, take them off OVER_LIMIT_NOW: {back_within:?}"
     );
 }
 

@@ -49,6 +49,21 @@ pub struct Spec<'a> {
     pub empty: &'a str,
 }
 
+impl<'a> Spec<'a> {
+    /// A chart with nothing to plot yet: its title and the text shown instead.
+    pub fn empty(title: &'a str, empty: &'a str) -> Spec<'a> {
+        Spec {
+            title: Line::from(title),
+            series: vec![],
+            x: (0.0, 1.0),
+            x_time: false,
+            x_labels: false,
+            reference: None,
+            empty,
+        }
+    }
+}
+
 /// A series' legend name: what it is, and the column it comes from when that
 /// says something more and there is room.
 pub fn legend_name(what: &str, column: &str, room: bool) -> String {

@@ -10,7 +10,6 @@ use crate::parse::roles::EnergyTerm;
 
 use super::chart::{self, Series, Spec, legend_name};
 use super::format::pct;
-use super::growth::empty_spec;
 use super::theme::{Theme, symbol};
 
 /// Plain name of an energy term.
@@ -47,7 +46,12 @@ pub fn balance_words(s: &AppState, narrow: bool) -> String {
 pub fn chart(f: &mut Frame, area: Rect, s: &AppState, t: &Theme, x_labels: bool) {
     let terms = s.energy_columns();
     let Some(x) = s.x_window() else {
-        chart::draw(f, area, empty_spec(" energy terms ", "waiting for rows"), t);
+        chart::draw(
+            f,
+            area,
+            Spec::empty(" energy terms ", "waiting for rows"),
+            t,
+        );
         return;
     };
     let width = usize::from(area.width.saturating_sub(10)).max(1);

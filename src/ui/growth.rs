@@ -83,7 +83,7 @@ pub fn chart(f: &mut Frame, area: Rect, s: &AppState, t: &Theme, x_labels: bool)
         chart::draw(
             f,
             area,
-            empty_spec(" growth per step ", "waiting for rows"),
+            Spec::empty(" growth per step ", "waiting for rows"),
             t,
         );
         return;
@@ -141,7 +141,7 @@ pub fn balance_chart(f: &mut Frame, area: Rect, s: &AppState, t: &Theme, x_label
         chart::draw(
             f,
             area,
-            empty_spec(" energy balance error ", "waiting for rows"),
+            Spec::empty(" energy balance error ", "waiting for rows"),
             t,
         );
         return;
@@ -174,18 +174,6 @@ pub fn balance_chart(f: &mut Frame, area: Rect, s: &AppState, t: &Theme, x_label
         empty: "no energy columns recognised",
     };
     chart::draw(f, area, spec, t);
-}
-
-pub(crate) fn empty_spec<'a>(title: &'a str, empty: &'a str) -> Spec<'a> {
-    Spec {
-        title: Line::from(title),
-        series: vec![],
-        x: (0.0, 1.0),
-        x_time: false,
-        x_labels: false,
-        reference: None,
-        empty,
-    }
 }
 
 /// The fitted frequency; a real eigenvalue has none to speak of, and a mode at

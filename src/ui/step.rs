@@ -12,7 +12,6 @@ use crate::parse::roles::Role;
 
 use super::chart::{self, Series, Spec, legend_name};
 use super::format::{num, pct};
-use super::growth::empty_spec;
 use super::theme::Theme;
 
 /// Fall of the step across the window that is marked as a warning (fraction).
@@ -36,7 +35,7 @@ pub fn chart(f: &mut Frame, area: Rect, s: &AppState, t: &Theme, x_labels: bool)
         } else {
             "no time-step column recognised"
         };
-        chart::draw(f, area, empty_spec(" time step ", msg), t);
+        chart::draw(f, area, Spec::empty(" time step ", msg), t);
         return;
     };
     let width = usize::from(area.width.saturating_sub(10)).max(1);
@@ -83,7 +82,7 @@ pub fn chart(f: &mut Frame, area: Rect, s: &AppState, t: &Theme, x_labels: bool)
 /// Chart of the probe signal chosen with Tab.
 pub fn probe_chart(f: &mut Frame, area: Rect, s: &AppState, t: &Theme, x_labels: bool) {
     let (Some(col), Some(x)) = (s.shown_probe(), s.x_window()) else {
-        chart::draw(f, area, empty_spec(" probe ", "no probe columns"), t);
+        chart::draw(f, area, Spec::empty(" probe ", "no probe columns"), t);
         return;
     };
     let n = s.probe_columns().len();
