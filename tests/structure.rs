@@ -19,6 +19,7 @@ const LAYERS: &[&str] = &[
     "detect",
     "readout",
     "demo",
+    "blind",
     "source",
     "glob",
     "settings",
