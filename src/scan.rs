@@ -50,19 +50,7 @@ fn scan_with(
         }
     };
     if pipeline.rows() == 0 {
-        let what = if bytes == 0 {
-            "the file is empty".to_owned()
-        } else if pipeline.schema().columns.is_empty() {
-            format!("no header or data row in {} lines", pipeline.lines())
-        } else {
-            format!("a header but no data row in {} lines", pipeline.lines())
-        };
-        let skipped = if pipeline.skipped() > 0 {
-            format!(" ({} lines skipped as unreadable)", pipeline.skipped())
-        } else {
-            String::new()
-        };
-        bail!("{}: no data row: {what}{skipped}", path.display());
+        bail!("{}: {}", path.display(), pipeline.no_data_reason(bytes));
     }
     let file = path.display().to_string();
     Ok(builder.finish(&file, pipeline.rows(), pipeline.skipped(), pipeline.lines()))

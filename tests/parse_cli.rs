@@ -181,3 +181,28 @@ fn escapes_in_names_never_reach_the_terminal() {
         }
     }
 }
+
+/// A UTF-32 file (its byte-order mark, Unicode Standard §23.8) is refused with
+/// the reason, by `scan` and `columns` alike, rather than "no data row" alone.
+#[test]
+fn a_refused_encoding_is_named_in_the_error() {
+    let dir = tempfile::tempdir().unwrap();
+    let mut bytes = b"\xFF\xFE\x00\x00".to_vec();
+    for ch in "time,ke\n0,1\n1,2\n".chars() {
+        bytes.extend_from_slice(&(ch as u32).to_le_bytes());
+    }
+    let path = write(&dir, "wide.csv", &bytes);
+    for cmd in ["scan", "columns"] {
+        let out = bin()
+            .args([cmd, "--no-config"])
+            .arg(&path)
+            .output()
+            .unwrap();
+        assert_eq!(out.status.code(), Some(3), "{cmd}");
+        let err = String::from_utf8_lossy(&out.stderr);
+        assert!(
+            err.contains("wide.csv") && err.contains("UTF-32") && err.contains("convert it"),
+            "{cmd}: {err}"
+        );
+    }
+}

@@ -69,7 +69,7 @@ pub fn run(args: ColumnsArgs) -> anyhow::Result<i32> {
     }
     let mut pipeline = Pipeline::new(&settings);
     let mut sink = FirstColumns::default();
-    drive_file(
+    let bytes = drive_file(
         &args.file,
         &mut pipeline,
         &mut sink,
@@ -77,7 +77,11 @@ pub fn run(args: ColumnsArgs) -> anyhow::Result<i32> {
         &mut |_, _| {},
     )?;
     let Some(columns) = sink.columns.clone().filter(|_| sink.rows > 0) else {
-        bail!("{}: no data row, so no columns", args.file.display());
+        bail!(
+            "{}: {}, so no columns",
+            args.file.display(),
+            pipeline.no_data_reason(bytes)
+        );
     };
     let text = if args.json {
         let mut t = serde_json::to_string_pretty(&columns)?;

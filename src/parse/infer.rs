@@ -107,11 +107,7 @@ impl Inference {
         step: Option<usize>,
         dt: Option<(usize, u64)>,
     ) {
-        let median_diff = |c: usize| {
-            let mut d: Vec<f64> = rows.windows(2).map(|w| w[1][c] - w[0][c]).collect();
-            d.sort_by(f64::total_cmp);
-            d.get(d.len() / 2).copied()
-        };
+        let median_diff = |c: usize| median(rows.windows(2).map(|w| w[1][c] - w[0][c]).collect());
         let name = |c: usize| format!("c{}", c + 1);
         match (step, dt, time) {
             (Some(s), _, t) => {
@@ -147,6 +143,12 @@ impl Inference {
             (None, None, None) => {}
         }
     }
+}
+
+/// The middle value (the upper one of an even count).
+fn median(mut v: Vec<f64>) -> Option<f64> {
+    v.sort_by(f64::total_cmp);
+    v.get(v.len() / 2).copied()
 }
 
 fn fmt_count(k: f64) -> String {
@@ -199,7 +201,9 @@ fn time_like(v: &[f64]) -> Option<String> {
         .fold((f64::INFINITY, 0.0_f64), |(a, b), x| (a.min(*x), b.max(*x)));
     let rows = v.len();
     Some(if hi <= lo * (1.0 + WHOLE_TOL) {
-        format!("increasing by a regular {lo:.4e} per row over {rows} rows")
+        // The median, as the stride note gives the time per row.
+        let mid = median(d).unwrap_or(lo);
+        format!("increasing by a regular {mid:.4e} per row over {rows} rows")
     } else {
         format!("increasing by smoothly varying {lo:.4e} to {hi:.4e} per row over {rows} rows")
     })

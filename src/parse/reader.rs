@@ -75,6 +75,11 @@ impl Reader {
         self.line
     }
 
+    /// Why nothing of the input is read, when its encoding is refused.
+    pub fn refused(&self) -> Option<&'static str> {
+        matches!(self.encoding, Encoding::Refused).then_some(super::unicode::UTF32_REFUSED)
+    }
+
     /// The schema in force, if a header or first row has been read.
     pub fn schema(&self) -> Option<&Schema> {
         self.cur.schema.as_ref()

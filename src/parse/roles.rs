@@ -232,6 +232,10 @@ mod tests {
             ("contact energy", Artificial),
             ("E_contact", Artificial),
             ("hourglass_dissipation", Artificial),
+            ("KE_total", Kinetic),
+            ("total_KE", Kinetic),
+            ("PE_sum", Internal),
+            ("IE_total", Internal),
         ];
         for (name, term) in energy {
             assert_eq!(role(name), Role::Energy(term), "{name}");
@@ -261,6 +265,12 @@ mod tests {
             "CPU",
             "kin_visc",
             "atoms",
+            // Short forms beside a word of another quantity.
+            "KE_max",
+            "PE_ratio",
+            "ie_count",
+            "pe_rank",
+            "se_x",
         ];
         for name in probes {
             assert_eq!(role(name), Role::Probe, "{name}");

@@ -38,6 +38,10 @@ pub(super) enum Sniffed {
     },
 }
 
+/// Why a UTF-32 file is not read, and what to do.
+pub(super) const UTF32_REFUSED: &str =
+    "the file is UTF-32 (byte-order mark): not read; convert it to UTF-8";
+
 const UTF8_BOM: &[u8] = b"\xEF\xBB\xBF";
 const UTF16LE_BOM: &[u8] = b"\xFF\xFE";
 const UTF16BE_BOM: &[u8] = b"\xFE\xFF";
@@ -68,11 +72,7 @@ impl Encoding {
         }
         let seen = std::mem::take(seen);
         let (next, skip, note) = if seen.starts_with(UTF32LE_BOM) || seen.starts_with(UTF32BE_BOM) {
-            (
-                Encoding::Refused,
-                seen.len(),
-                Some("the file is UTF-32 (byte-order mark): not read; convert it to UTF-8"),
-            )
+            (Encoding::Refused, seen.len(), Some(UTF32_REFUSED))
         } else if seen.starts_with(UTF8_BOM) {
             (Encoding::Bytes, UTF8_BOM.len(), None)
         } else if seen.starts_with(UTF16LE_BOM) || seen.starts_with(UTF16BE_BOM) {

@@ -358,6 +358,11 @@ const STEMS: &[Stem] = &[
     stem("stabili", Artificial),
     strong(exact(stem("kin", Kinetic))),
     strong(stem("kinet", Kinetic)),
+    // The short forms, as words of a longer name (`KE_total`, `total_PE`).
+    strong(exact(stem("ke", Kinetic))),
+    strong(exact(stem("pe", Internal))),
+    strong(exact(stem("se", Internal))),
+    strong(exact(stem("ie", Internal))),
     alone(stem("potential", Internal)),
     exact(stem("pot", Internal)),
     alone(stem("strain", Internal)),

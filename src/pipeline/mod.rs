@@ -181,6 +181,27 @@ impl Pipeline {
         self.reader.lines()
     }
 
+    /// Why no data row came out of `bytes` bytes of input, in words (for the
+    /// error of a command that needs rows): an empty file, a refused encoding,
+    /// no table, or a header without rows, and how many lines were skipped.
+    pub fn no_data_reason(&self, bytes: u64) -> String {
+        let what = if bytes == 0 {
+            "the file is empty".to_owned()
+        } else if let Some(why) = self.reader.refused() {
+            why.to_owned()
+        } else if self.state.schema.columns.is_empty() {
+            format!("no header or data row in {} lines", self.lines())
+        } else {
+            format!("a header but no data row in {} lines", self.lines())
+        };
+        let skipped = if self.skipped() > 0 {
+            format!(" ({} lines skipped as unreadable)", self.skipped())
+        } else {
+            String::new()
+        };
+        format!("no data row: {what}{skipped}")
+    }
+
     /// The schema of the current segment (empty before the first header or row).
     pub fn schema(&self) -> &Schema {
         &self.state.schema
