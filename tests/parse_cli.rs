@@ -206,3 +206,140 @@ fn a_refused_encoding_is_named_in_the_error() {
         );
     }
 }
+
+/// A recorder that writes time alone (output every 3 steps of 1e-3 here): the
+/// stride is unknown and said so until the solver's step is given, with
+/// `--step-size` or `input.step_size`; the flag wins over the file; a step
+/// that does not divide the time per row is named as suspect; a step size that
+/// is not a positive number is refused, naming where it came from.
+#[test]
+fn a_given_step_size_gives_the_stride_of_a_time_only_recorder() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = write(&dir, "node.out", &headerless(40, 3, false));
+    let columns = |args: &[&str]| {
+        let out = bin().arg("columns").args(args).arg(&path).output().unwrap();
+        (
+            out.status.code(),
+            String::from_utf8_lossy(&out.stdout).into_owned(),
+            String::from_utf8_lossy(&out.stderr).into_owned(),
+        )
+    };
+    let (_, text, _) = columns(&["--no-config"]);
+    assert!(
+        text.contains("the output stride is unknown") && text.contains("--step-size"),
+        "{text}"
+    );
+    let (_, text, _) = columns(&["--no-config", "--step-size", "1e-3"]);
+    assert!(
+        text.contains(
+            "output every 3 solver steps (3.0000e-3 of time per row ÷ the step size 1e-3 given with --step-size)"
+        ),
+        "{text}"
+    );
+    let (_, text, _) = columns(&["--no-config", "--step-size", "7e-4"]);
+    assert!(
+        text.contains("output every 4.29 solver steps") && text.contains("not a whole number"),
+        "{text}"
+    );
+    let cfg = write(&dir, "read.toml", b"[input]\nstep_size = 1.5e-3\n");
+    let (_, text, _) = columns(&["--config", cfg.to_str().unwrap()]);
+    assert!(text.contains("output every 2 solver steps"), "{text}");
+    let (_, text, _) = columns(&["--config", cfg.to_str().unwrap(), "--step-size", "1e-3"]);
+    assert!(text.contains("output every 3 solver steps"), "{text}");
+    for bad in ["0", "-1e-3", "nan"] {
+        let (code, _, err) = columns(&["--no-config", &format!("--step-size={bad}")]);
+        assert_eq!(code, Some(3), "{bad}");
+        assert!(
+            err.contains("--step-size") && err.contains("positive"),
+            "{bad}: {err}"
+        );
+    }
+    let cfg = write(&dir, "bad.toml", b"[input]\nstep_size = 0.0\n");
+    let (code, _, err) = columns(&["--config", cfg.to_str().unwrap()]);
+    assert_eq!(code, Some(3));
+    assert!(err.contains("input.step_size"), "{err}");
+}
+
+/// A header with time but no step counter (a molecular-dynamics logger): the
+/// note says the stride is unknown; a `dt = …` line of the file gives it.
+#[test]
+fn a_time_only_header_says_where_its_stride_comes_from() {
+    let dir = tempfile::tempdir().unwrap();
+    let rows: String = (0..20)
+        .map(|i| format!("{:.4} {:.4}\n", f64::from(i) * 0.01, f64::from(i).sin()))
+        .collect();
+    let plain = write(&dir, "md.log", format!("Time[ps] x\n{rows}").as_bytes());
+    let text = columns_text(&plain);
+    assert!(text.contains("the output stride is unknown"), "{text}");
+    let declared = write(
+        &dir,
+        "md-dt.log",
+        format!("dt = 0.002 ps\nTime[ps] x\n{rows}").as_bytes(),
+    );
+    let text = columns_text(&declared);
+    assert!(
+        text.contains("no step counter: the output stride is the time per row ÷ the step size 2e-3 declared at line 1"),
+        "{text}"
+    );
+}
+
+/// Central difference on two uncoupled modes, the high one past its limit
+/// (Ω = 2.02) from rounding-level amplitude, written every `every` steps of
+/// 1e-3 as time and two probes, without a step counter.
+fn central_difference_recorder(omega_dt: f64, every: u32) -> Vec<u8> {
+    let low = 0.05_f64;
+    let (mut a, mut a0) = (1e-12_f64, -1e-12_f64);
+    let (mut b, mut b0) = (1.0_f64, low.cos());
+    let mut text = String::new();
+    for n in 1..200_000u32 {
+        (a, a0) = ((2.0 - omega_dt * omega_dt) * a - a0, a);
+        (b, b0) = ((2.0 - low * low) * b - b0, b);
+        if n % every == 1 {
+            let t = f64::from(n) * 1e-3;
+            text += &format!("{t:.6e} {:.6e} {:.6e}\n", b + a, 0.5 * b - a);
+        }
+        if a.abs() > 1e300 {
+            break;
+        }
+    }
+    text.into_bytes()
+}
+
+/// With the step given, growth is per solver step: the closed form of central
+/// difference past its limit, ρ = |b| + √(b² − 1), b = 1 − Ω²/2 (Hughes,
+/// *The Finite Element Method*, 1987, §9.1, from memory), not ρ³ per row.
+#[test]
+fn a_given_step_size_turns_growth_per_row_into_growth_per_step() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = write(&dir, "every3.out", &central_difference_recorder(2.02, 3));
+    let b = 1.0 - 2.02_f64.powi(2) / 2.0;
+    let rho = b.abs() + (b * b - 1.0).sqrt();
+    let growth = |args: &[&str]| {
+        let out = bin()
+            .args(["scan", "--json", "--no-config"])
+            .args(args)
+            .arg(&path)
+            .output()
+            .unwrap();
+        let r: ScanReport = serde_json::from_slice(&out.stdout).unwrap();
+        let a = r
+            .alarms
+            .iter()
+            .find(|a| a.detector == "growth")
+            .unwrap_or_else(|| panic!("no growth alarm: {:?}", r.alarms));
+        (
+            a.evidence.growth_per_output.unwrap(),
+            a.evidence.growth_per_step.unwrap(),
+        )
+    };
+    let (per_row, _) = growth(&[]);
+    assert!(
+        (per_row / rho.powi(3) - 1.0).abs() < 0.01,
+        "{per_row} per row"
+    );
+    let (_, per_step) = growth(&["--step-size", "1e-3"]);
+    assert!(
+        (per_step / rho - 1.0).abs() < 0.01,
+        "{per_step} per step, closed form {rho}"
+    );
+}

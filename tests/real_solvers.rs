@@ -35,6 +35,12 @@ pub struct Case {
     /// own layout in mind).
     pub rows: u64,
     pub basis: String,
+    /// The solver's fixed time step, when the driver knows it.
+    #[serde(default)]
+    pub step_size: Option<f64>,
+    /// ω_max·Δt at the start of the run, from the solver's own eigen analysis.
+    #[serde(default)]
+    pub omega_max_dt: Option<f64>,
 }
 
 /// The generated set.
@@ -127,7 +133,17 @@ pub fn columns(path: &Path) -> Vec<ColumnEntry> {
 
 /// `rhoscope scan --json FILE`.
 pub fn scan(path: &Path) -> ScanReport {
-    let out = bin().args(["scan", "--json"]).arg(path).output().unwrap();
+    scan_with(path, &[])
+}
+
+/// `rhoscope scan --json ARGS FILE`.
+pub fn scan_with(path: &Path, args: &[&str]) -> ScanReport {
+    let out = bin()
+        .args(["scan", "--json"])
+        .args(args)
+        .arg(path)
+        .output()
+        .unwrap();
     serde_json::from_slice(&out.stdout).unwrap_or_else(|e| {
         panic!(
             "scan --json {}: {e}; stderr: {}",

@@ -42,6 +42,12 @@ pub struct InputArgs {
     /// stability margin is then reported for what the history shows.
     #[arg(long, value_name = "SCHEME")]
     pub scheme: Option<String>,
+    /// The solver's time step, in the time column's units, for a file that writes
+    /// time but no step counter or step size (many recorders): the output stride
+    /// is then the time per row ÷ DT, and growth is read per solver step. It comes
+    /// before a step size the file declares (`timestep 0.005`).
+    #[arg(long, value_name = "DT")]
+    pub step_size: Option<f64>,
     /// Give a column a role, e.g. --role 'E_hg=artificial' (repeatable).
     #[arg(long = "role", value_name = "COLUMN=ROLE")]
     pub roles: Vec<String>,
@@ -65,6 +71,7 @@ impl InputArgs {
             jsonl: self.jsonl,
             pattern: self.pattern.clone(),
             scheme: self.scheme.clone(),
+            step_size: self.step_size,
             roles: self.roles.clone(),
             signs: self.signs.clone(),
         }

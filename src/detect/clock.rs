@@ -15,9 +15,10 @@ pub struct Clock {
     time_col: Option<usize>,
     step_col: Option<usize>,
     dt_col: Option<usize>,
-    /// Simulated time per solver step that the file declares (`timestep
-    /// 0.005`), used when a step counter but no time column is written:
-    /// time = step × this.
+    /// Simulated time per solver step known without a column (declared by the
+    /// file, `timestep 0.005`, or given by the user): with a step counter and no
+    /// time column, time = step × this; with a time column and no step counter,
+    /// steps per row = time per row ÷ this.
     declared_step: Option<f64>,
     /// Latest finite values.
     pub time: Option<f64>,
@@ -53,12 +54,12 @@ impl Clock {
         }
     }
 
-    /// Take time as step × `dt` when the file declares a step size and writes a
-    /// step counter but no time column (particle-code logs).
+    /// A step size known without a column: time is step × `dt` when a step
+    /// counter but no time column is written (particle-code logs), and the
+    /// stride is the time per row ÷ `dt` when a time column but neither a step
+    /// counter nor a step-size column is (structural recorders).
     pub fn set_declared_step(&mut self, dt: Option<f64>) {
-        self.declared_step = dt.filter(|h| {
-            h.is_finite() && *h > 0.0 && self.time_col.is_none() && self.step_col.is_some()
-        });
+        self.declared_step = dt.filter(|h| h.is_finite() && *h > 0.0 && self.dt_col.is_none());
     }
 
     /// Column of the simulated time, if any.
@@ -75,7 +76,10 @@ impl Clock {
     pub fn tick(&mut self, values: &[f64], arrival_s: Option<f64>) {
         let read = |c: Option<usize>| super::finite_at(values, c);
         let step = read(self.step_col);
-        let time = read(self.time_col).or_else(|| Some(step? * self.declared_step?));
+        let time = match self.time_col {
+            Some(_) => read(self.time_col),
+            None => step.zip(self.declared_step).map(|(s, h)| s * h),
+        };
         let dt = read(self.dt_col);
         if let (Some(t), Some(t0)) = (time, self.time) {
             self.time_per_row = smooth(self.time_per_row, t - t0);
@@ -83,7 +87,7 @@ impl Clock {
         match (step, self.step) {
             (Some(s), Some(s0)) => self.steps_per_row = smooth(self.steps_per_row, s - s0),
             _ => {
-                if let (Some(t), Some(t0), Some(h)) = (time, self.time, dt)
+                if let (Some(t), Some(t0), Some(h)) = (time, self.time, dt.or(self.declared_step))
                     && h > 0.0
                 {
                     self.steps_per_row = smooth(self.steps_per_row, ((t - t0) / h).max(1.0));

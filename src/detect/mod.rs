@@ -154,7 +154,7 @@ impl Engine {
         let mut shared = Shared::new(roles);
         shared
             .clock
-            .set_declared_step(schema.declared.step_size.map(|(_, dt)| dt));
+            .set_declared_step(schema.step_size.map(|h| h.value));
         Self {
             shared,
             detectors,

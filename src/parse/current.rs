@@ -3,7 +3,7 @@
 //! new segment when the time column goes backwards.
 
 use super::roles::{self, Role, RoleRules};
-use super::{Declared, RowSink, Schema, SegmentReason, SkipReason};
+use super::{Declared, NamesFrom, RowSink, Schema, SegmentReason, SkipReason, StepFrom, StepSize};
 
 /// See the module documentation.
 #[derive(Debug, Clone)]
@@ -15,11 +15,14 @@ pub(super) struct Current {
     pub rows_in_segment: u64,
     /// Declarations read so far, attached to each schema set from now on.
     pub declared: Declared,
+    /// The step size the user gave, before any the file declares.
+    given_step: Option<f64>,
 }
 
 impl Current {
-    pub fn new(rules: &RoleRules) -> Self {
+    pub fn new(rules: &RoleRules, given_step: Option<f64>) -> Self {
         Self {
+            given_step,
             rules: rules.clone(),
             schema: None,
             time_col: None,
@@ -34,21 +37,45 @@ impl Current {
         self.schema.as_ref().map_or(0, |s| s.columns.len())
     }
 
+    /// The step size in force when no column holds it: the given one, else the
+    /// file's latest declaration.
+    pub fn step_size(&self) -> Option<StepSize> {
+        let given = self.given_step.map(|value| StepSize {
+            value,
+            from: StepFrom::Given,
+        });
+        given.or(self.declared.step_size.map(|(at, value)| StepSize {
+            value,
+            from: StepFrom::Line(at),
+        }))
+    }
+
     /// The schema in force applies from `line` on.
     pub fn set_schema(&mut self, line: u64, mut schema: Schema, sink: &mut dyn RowSink) {
         schema.declared = self.declared.clone();
+        schema.step_size = self.step_size();
         let roles = roles::assign(&schema, &self.rules);
         self.time_col = roles.find(Role::Time);
-        if let (None, Some(step), Some((at, dt))) = (
-            self.time_col,
-            roles.find(Role::StepNumber),
-            schema.declared.step_size,
-        ) {
-            schema.notes.push(format!(
-                "no time column: time is taken as {} × {dt:e}, the step size declared at line {at} \
+        let step_col = roles.find(Role::StepNumber);
+        let dt_col = roles.find(Role::StepSize);
+        // A headerless table's stride was said where it was inferred.
+        let inferred = schema.names_from == NamesFrom::Generic;
+        match (self.time_col, step_col, dt_col, schema.step_size) {
+            (None, Some(step), _, Some(h)) => schema.notes.push(format!(
+                "no time column: time is taken as {} × {dt:e}, {h} \
                  (exact while the step size stays the same)",
-                schema.columns[step].name
-            ));
+                schema.columns[step].name,
+                dt = h.value
+            )),
+            (Some(_), None, None, Some(h)) if !inferred => schema.notes.push(format!(
+                "no step counter: the output stride is the time per row ÷ {h}"
+            )),
+            (Some(_), None, None, None) if !inferred => schema.notes.push(
+                "no step counter or step size: the output stride is unknown, so growth is \
+                 per output row; --step-size gives the solver's step"
+                    .to_owned(),
+            ),
+            _ => {}
         }
         self.last_time = None;
         self.rows_in_segment = 0;

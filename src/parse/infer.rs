@@ -4,8 +4,8 @@
 //! row is a whole number of its values), and the output stride that follows. Each
 //! inference carries its reason; `--role` overrides any of them. Pure.
 
-use super::Inferred;
 use super::roles::Role;
+use super::{Inferred, StepSize};
 
 /// Rows held back from a headerless table to infer its roles (fewer at the end
 /// of input, or when a row already holds a non-finite value).
@@ -30,8 +30,9 @@ pub struct Inference {
 }
 
 /// Infer roles from the first rows of a headerless table (all rows have the same
-/// number of fields).
-pub fn headerless(rows: &[&[f64]]) -> Inference {
+/// number of fields). `given` is a step size known without a column (given by
+/// the user or declared by the file): with time alone it gives the stride.
+pub fn headerless(rows: &[&[f64]], given: Option<StepSize>) -> Inference {
     let n = rows.first().map_or(0, |r| r.len());
     let col = |c: usize| -> Vec<f64> { rows.iter().map(|r| r[c]).collect() };
     let mut out = Inference::default();
@@ -80,7 +81,7 @@ pub fn headerless(rows: &[&[f64]]) -> Inference {
             format!("inferred: positive, and each time increment is {k} of its values"),
         );
     }
-    out.stride_notes(rows, time, step, dt);
+    out.stride_notes(rows, time, step, dt, given);
     if time.is_none() {
         out.notes.push(
             "no column reads as time (the first column does not increase steadily): alarms \
@@ -106,6 +107,7 @@ impl Inference {
         time: Option<usize>,
         step: Option<usize>,
         dt: Option<(usize, u64)>,
+        given: Option<StepSize>,
     ) {
         let median_diff = |c: usize| median(rows.windows(2).map(|w| w[1][c] - w[0][c]).collect());
         let name = |c: usize| format!("c{}", c + 1);
@@ -133,12 +135,27 @@ impl Inference {
                 name(c)
             )),
             (None, None, Some(t)) => {
-                if let Some(dtime) = median_diff(t) {
-                    self.notes.push(format!(
-                        "no step counter or step size: {dtime:.4e} of time per output row; \
-                         the output stride is unknown, so growth is per output row"
-                    ));
-                }
+                let Some(dtime) = median_diff(t) else { return };
+                self.notes.push(match given {
+                    Some(h) => {
+                        let k = dtime / h.value;
+                        let whole = (k - k.round()).abs() <= WHOLE_TOL * k.round().max(1.0);
+                        let check = if whole {
+                            ""
+                        } else {
+                            ": not a whole number of steps, check the step size and the time's unit"
+                        };
+                        format!(
+                            "output every {} solver steps ({dtime:.4e} of time per row ÷ {h}){check}",
+                            fmt_count(if whole { k.round() } else { k })
+                        )
+                    }
+                    None => format!(
+                        "no step counter or step size: {dtime:.4e} of time per output row; the \
+                         output stride is unknown, so growth is per output row; --step-size \
+                         gives the solver's step"
+                    ),
+                });
             }
             (None, None, None) => {}
         }
@@ -250,7 +267,7 @@ mod tests {
     fn infer(cols: &[Vec<f64>]) -> Inference {
         let r = rows(cols);
         let refs: Vec<&[f64]> = r.iter().map(Vec::as_slice).collect();
-        headerless(&refs)
+        headerless(&refs, None)
     }
 
     fn role_of(inf: &Inference, c: usize) -> Option<Role> {

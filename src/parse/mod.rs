@@ -52,6 +52,9 @@ pub struct ParseOptions {
     pub format: Format,
     /// Lines longer than this are skipped and reported (default 1 MiB).
     pub max_line_bytes: usize,
+    /// The solver's step size given by the user (`--step-size`, `input.step_size`),
+    /// in the time column's units: it comes before one the file declares.
+    pub step_size: Option<f64>,
 }
 
 impl Default for ParseOptions {
@@ -59,6 +62,35 @@ impl Default for ParseOptions {
         Self {
             format: Format::Auto,
             max_line_bytes: 1 << 20,
+            step_size: None,
+        }
+    }
+}
+
+/// The solver's step size when no column holds it: given by the user, or
+/// declared by a text line of the file. With a step counter and no time column
+/// it gives the time (step × it); with a time column and no step counter, the
+/// output stride (time per row ÷ it).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct StepSize {
+    pub value: f64,
+    pub from: StepFrom,
+}
+
+/// Where a [`StepSize`] came from.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum StepFrom {
+    /// `--step-size` or `input.step_size`.
+    Given,
+    /// A text line of the file (`timestep 0.005`), at this line.
+    Line(u64),
+}
+
+impl std::fmt::Display for StepSize {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self.from {
+            StepFrom::Given => write!(f, "the step size {:e} given with --step-size", self.value),
+            StepFrom::Line(l) => write!(f, "the step size {:e} declared at line {l}", self.value),
         }
     }
 }
@@ -130,6 +162,9 @@ pub struct Schema {
     pub notes: Vec<String>,
     /// Declarations read from text lines of the file, the latest of each kind.
     pub declared: Declared,
+    /// The step size in force when no column holds it: the given one, else the
+    /// file's latest declaration.
+    pub step_size: Option<StepSize>,
 }
 
 /// What the file itself declares in comment or banner lines.

@@ -61,7 +61,7 @@ impl Reader {
             carry: Vec::new(),
             discarding: None,
             line: 0,
-            cur: Current::new(rules),
+            cur: Current::new(rules, opts.step_size),
             table: Table::new(forced_delimiter(&opts.format)),
             xml: Xml::default(),
             names: Vec::new(),

@@ -398,7 +398,7 @@ impl Table {
         }
         let n = row0.len();
         let refs: Vec<&[f64]> = rows.iter().map(|(_, r)| r.as_slice()).collect();
-        let inf = infer::headerless(&refs);
+        let inf = infer::headerless(&refs, cur.step_size());
         let schema = Schema {
             columns: generic(0, n),
             names_from: NamesFrom::Generic,

@@ -67,6 +67,8 @@ struct InputSection {
     delimiter: Option<String>,
     pattern: Option<String>,
     max_line_bytes: Option<usize>,
+    /// The solver's step size, in the time column's units.
+    step_size: Option<f64>,
 }
 
 #[derive(Debug, Default, Deserialize)]
@@ -127,6 +129,9 @@ impl Settings {
                     bail!("input.max_line_bytes must be positive");
                 }
                 self.parse.max_line_bytes = n;
+            }
+            if let Some(h) = input.step_size {
+                self.parse.step_size = Some(step_size_value(h).context("input.step_size")?);
             }
             let delimiter = input.delimiter.as_deref().map(delimiter_key).transpose()?;
             self.parse.format = match (input.format.as_deref(), delimiter, input.pattern) {
@@ -194,6 +199,9 @@ impl Settings {
         if let Some(text) = &input.scheme {
             self.detect.scheme = Some(scheme_key(text).context("--scheme")?);
         }
+        if let Some(h) = input.step_size {
+            self.parse.step_size = Some(step_size_value(h).context("--step-size")?);
+        }
         for spec in &input.roles {
             let (column, key) = spec
                 .rsplit_once('=')
@@ -218,6 +226,14 @@ impl Settings {
         }
         Ok(())
     }
+}
+
+/// A step size: positive and finite.
+fn step_size_value(h: f64) -> anyhow::Result<f64> {
+    if !(h.is_finite() && h > 0.0) {
+        bail!("the step size must be a positive number, not {h}");
+    }
+    Ok(h)
 }
 
 /// A scheme as `rhoscope limits` names it: NAME or NAME:key=value,...

@@ -22,6 +22,9 @@ pub struct ReadSpec {
     pub pattern: Option<String>,
     /// The solver's scheme as `rhoscope limits` names it.
     pub scheme: Option<String>,
+    /// The solver's time step, in the time column's units (before a step the
+    /// file declares).
+    pub step_size: Option<f64>,
     /// Role overrides as written, `COLUMN=ROLE`.
     pub roles: Vec<String>,
     /// Energy signs as written, `TERM=SIGN`.

@@ -13,7 +13,7 @@
 //! TotEng Press` by default) over numeric rows, closed by `Loop time of`
 //! (LAMMPS manual, `thermo_style`).
 
-use super::{Case, Runs, columns, runs, scan};
+use super::{Case, Runs, bin, columns, runs, scan, scan_with};
 use rhoscope::report::ColumnEntry;
 
 /// Roles of the columns, in order.
@@ -277,4 +277,69 @@ fn lammps_default_thermo_time_is_step_times_the_echoed_timestep() {
         }
     }
     assert!(checked >= 2);
+}
+
+/// Spectral radius of central difference on the undamped oscillator past its
+/// limit: the roots of λ² − (2 − Ω²)λ + 1 = 0, so ρ = |b| + √(b² − 1) with
+/// b = 1 − Ω²/2, for Ω = ω·Δt > 2 (Hughes, *The Finite Element Method*, 1987,
+/// §9.1, from memory).
+fn central_difference_rho(omega_dt: f64) -> f64 {
+    let b = 1.0 - omega_dt * omega_dt / 2.0;
+    b.abs() + (b * b - 1.0).max(0.0).sqrt()
+}
+
+/// OpenSees recorders write time but no step counter, so the stride of an
+/// every-k file is unknown until the solver's step is given: with
+/// `--step-size` the note names the k the recorder was set to, and the growth
+/// per solver step of a run past the limit from its first step is the closed
+/// form at the ω_max·Δt of OpenSees's own eigen analysis.
+#[test]
+fn a_given_step_size_gives_the_stride_and_growth_per_step() {
+    let Some(r) = runs() else { return };
+    let mut checked = 0;
+    for c in r.by_solver("opensees") {
+        let (Some(dt), Some(w)) = (c.step_size, c.omega_max_dt) else {
+            panic!("{}: labels.csv gives no step size or ω_max·Δt", c.case)
+        };
+        let every: u32 = c
+            .case
+            .rsplit_once("-every")
+            .map_or(1, |(_, k)| k.parse().unwrap());
+        let path = r.path(c);
+        let dt_arg = format!("{dt:e}");
+        if every > 1 {
+            let out = bin()
+                .args(["columns", "--step-size", &dt_arg])
+                .arg(&path)
+                .output()
+                .unwrap();
+            let text = String::from_utf8_lossy(&out.stdout);
+            assert!(
+                text.contains(&format!("output every {every} solver steps")),
+                "{}: {text}",
+                c.case
+            );
+        }
+        // Past the limit from the start, with no event changing ω_max.
+        if c.level != "critical" || w < 2.02 || c.basis.contains("engaged") {
+            continue;
+        }
+        let rep = scan_with(&path, &["--step-size", &dt_arg]);
+        let growth = rep
+            .alarms
+            .iter()
+            .find_map(|a| a.evidence.growth_per_step)
+            .unwrap_or_else(|| panic!("{}: no growth estimate: {:?}", c.case, rep.alarms));
+        let want = central_difference_rho(w);
+        assert!(
+            (growth / want - 1.0).abs() < 0.02,
+            "{}: growth ×{growth:.4} per step, closed form ×{want:.4} at ω·Δt = {w}",
+            c.case
+        );
+        checked += 1;
+    }
+    assert!(
+        checked >= 3,
+        "only {checked} runs past the limit from the start"
+    );
 }

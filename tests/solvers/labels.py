@@ -37,6 +37,11 @@ class Label:
     basis: str
     # Data rows in the file as its solver wrote them (for the reading checks).
     rows: int = 0
+    # The solver's time step, when the run has a fixed one the file may not
+    # write (structural recorders); and omega_max * dt at the start, from the
+    # solver's own eigen analysis.
+    step_size: Optional[float] = None
+    omega_max_dt: Optional[float] = None
 
     def __post_init__(self):
         if self.level not in LEVELS:
@@ -69,7 +74,9 @@ def write_labels(directory: str, labels: List[Label]) -> str:
     path = os.path.join(directory, "labels.csv")
     with open(path, "w", newline="") as f:
         w = csv.writer(f)
-        w.writerow(["case", "file", "solver", "level", "onset_line", "crash_line", "rows", "basis"])
+        w.writerow(
+            ["case", "file", "solver", "level", "onset_line", "crash_line", "rows", "basis", "step_size", "omega_max_dt"]
+        )
         for l in labels:
             w.writerow(
                 [
@@ -81,6 +88,8 @@ def write_labels(directory: str, labels: List[Label]) -> str:
                     "" if l.crash_line is None else l.crash_line,
                     l.rows,
                     l.basis,
+                    "" if l.step_size is None else repr(l.step_size),
+                    "" if l.omega_max_dt is None else repr(l.omega_max_dt),
                 ]
             )
     return path

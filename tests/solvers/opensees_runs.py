@@ -257,11 +257,15 @@ class Stepper:
         self.events: List[str] = []
         self.steps = 0
         self.bad_steps = 0
+        # omega_max * dt at the first eigen analysis.
+        self.first_wdt: Optional[float] = None
 
     def check(self, why: str):
         """Rerun eigen now; note the time omega_max*dt first passes 2."""
         w = omega_max(self.model)
         wdt = w * self.dt
+        if self.first_wdt is None:
+            self.first_wdt = wdt
         t = ops.getTime()
         self.events.append(f"{why} at t={t:.4g} s: omega_max*dt={wdt:.4f}")
         if wdt > self.limit and self.unstable_from is None:
@@ -329,7 +333,18 @@ def finish(
         intended += f"; peak recorded displacement {peak:.3g} m"
         level = "ok"
         basis = f"OpenSees {scheme}; eigen -fullGenLapack: {history}; {intended}"
-    return Label(case, file, SOLVER, level, onset, crash if level == "critical" else None, basis, len(rows.lines))
+    return Label(
+        case,
+        file,
+        SOLVER,
+        level,
+        onset,
+        crash if level == "critical" else None,
+        basis,
+        len(rows.lines),
+        step_size=stepper.dt,
+        omega_max_dt=stepper.first_wdt,
+    )
 
 
 
