@@ -1,6 +1,7 @@
 //! The integration-test crate: one binary, one module per area.
 #![allow(clippy::unwrap_used)]
 
+mod backlog_forecast;
 mod batch_job;
 mod blind_catalogue;
 mod blind_integrators;

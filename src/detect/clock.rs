@@ -9,6 +9,19 @@ use crate::parse::roles::{Role, RoleMap};
 /// Weight of the newest row in the smoothed rates.
 const RATE_WEIGHT: f64 = 0.05;
 
+/// Weight of the newest group of rows that arrived together in the smoothed
+/// wall time per row: each group measures the mean over one read exactly, so
+/// a few groups suffice and a change of pace shows within about four reads.
+const WALL_WEIGHT: f64 = 0.25;
+
+/// Rows that arrived together, at one instant: the solver wrote them after
+/// the instant before.
+#[derive(Debug, Clone, Copy)]
+struct Arrivals {
+    at_s: f64,
+    rows: u64,
+}
+
 /// Per-segment clock.
 #[derive(Debug, Clone, Default)]
 pub struct Clock {
@@ -29,8 +42,12 @@ pub struct Clock {
     pub steps_per_row: Option<f64>,
     /// Smoothed simulated time per row.
     pub time_per_row: Option<f64>,
-    /// Smoothed wall seconds per row (live only).
+    /// Smoothed wall seconds per row, measured only on rows seen arriving
+    /// (live); `None` while unknown (a plain file, a backlog, the first reads).
     pub wall_per_row: Option<f64>,
+    /// The rows arriving at the latest instant, and the instant before them.
+    arriving: Option<Arrivals>,
+    before_s: Option<f64>,
 }
 
 fn smooth(old: Option<f64>, new: f64) -> Option<f64> {
@@ -94,8 +111,8 @@ impl Clock {
                 }
             }
         }
-        if let (Some(a), Some(a0)) = (arrival_s, self.arrival_s) {
-            self.wall_per_row = smooth(self.wall_per_row, a - a0);
+        if let Some(a) = arrival_s {
+            self.arrive(a);
         }
         self.time = time.or(self.time);
         self.step = step.or(self.step);
@@ -103,8 +120,91 @@ impl Clock {
         self.arrival_s = arrival_s.or(self.arrival_s);
     }
 
+    /// Count a row that arrived at `at_s`. A read hands over many rows at one
+    /// instant; the wall time per row is the time between two reads over the
+    /// rows the later one brought, taken when the next read closes the group.
+    /// Rows without an arrival (a backlog, a plain file) say nothing of the
+    /// solver's pace, however fast they were read.
+    fn arrive(&mut self, at_s: f64) {
+        let Some(g) = self.arriving else {
+            self.arriving = Some(Arrivals { at_s, rows: 1 });
+            return;
+        };
+        if at_s <= g.at_s {
+            self.arriving = Some(Arrivals {
+                rows: g.rows + 1,
+                ..g
+            });
+            return;
+        }
+        if let Some(b) = self.before_s {
+            let w = (g.at_s - b) / g.rows as f64;
+            if w.is_finite() {
+                self.wall_per_row = Some(match self.wall_per_row {
+                    Some(o) => o + WALL_WEIGHT * (w - o),
+                    None => w,
+                });
+            }
+        }
+        self.before_s = Some(g.at_s);
+        self.arriving = Some(Arrivals { at_s, rows: 1 });
+    }
+
     /// Solver steps per output: known from the file, or 1 when it cannot tell.
     pub fn steps_per_output(&self) -> f64 {
         self.steps_per_row.filter(|k| *k >= 1.0).unwrap_or(1.0)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Relative tolerance: the groups below are exact, so only rounding remains.
+    const TOL: f64 = 1e-9;
+
+    #[test]
+    fn rows_read_in_groups_give_the_solver_pace_not_the_read_speed() {
+        // A solver writing a row every 10 ms, read once a second: 100 rows
+        // arrive at each read. Counted at any row of a group, the pace is
+        // 10 ms per row (1 s over the 100 rows a read brings).
+        let mut c = Clock::default();
+        for read in 0..10 {
+            for _ in 0..100 {
+                c.tick(&[], Some(f64::from(read)));
+            }
+            if read < 2 {
+                // Two reads are needed to time the rows of the second.
+                assert_eq!(c.wall_per_row, None, "read {read}");
+            }
+        }
+        let w = c.wall_per_row.unwrap_or(f64::NAN);
+        assert!((w - 0.01).abs() < 0.01 * TOL, "{w}");
+    }
+
+    #[test]
+    fn rows_without_an_arrival_leave_the_pace_unknown() {
+        // A backlog or a plain file: rows come as fast as they are read.
+        let mut c = Clock::default();
+        for _ in 0..1000 {
+            c.tick(&[], None);
+        }
+        assert_eq!(c.wall_per_row, None);
+    }
+
+    #[test]
+    fn a_change_of_pace_shows_within_a_few_reads() {
+        let mut c = Clock::default();
+        let mut t = 0.0;
+        for rows in [10, 10, 10, 10, 100, 100, 100, 100, 100, 100, 100, 100] {
+            t += 1.0;
+            for _ in 0..rows {
+                c.tick(&[], Some(t));
+            }
+        }
+        // 0.1 s per row at first, then 0.01 s; after seven groups at the new
+        // pace the estimate is within (1 - 0.25)^7 ≈ 13 % of the gap.
+        let w = c.wall_per_row.unwrap_or(f64::NAN);
+        assert!(w > 0.01 && w < 0.01 + 0.14 * 0.09, "{w}");
     }
 }

@@ -34,9 +34,67 @@ pub fn fill(ev: &mut Evidence, magnitude: f64, rho_step: f64, bound: f64, clock:
     }
 }
 
+/// The forecast of `ev` in words, for an alarm message: steps, the simulated
+/// time they reach when the file has a time column, and the wall time when
+/// the rows were seen arriving — else said to be unknown, never a made-up
+/// zero (rows read from a backlog or a finished file carry no pace).
+pub fn describe(ev: &Evidence) -> Option<String> {
+    let n = ev.forecast_steps?;
+    let mut s = format!("overflow in about {n:.0} steps");
+    if let Some(t) = ev.forecast_time {
+        s += &format!(", near t = {t:.4e}");
+    }
+    s += &match ev.forecast_wall_s {
+        Some(w) => format!(" ({w:.0} s wall clock)"),
+        None => " (wall time unknown: the rows were not seen arriving)".into(),
+    };
+    Some(s)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn the_words_never_make_up_a_wall_time() {
+        let mut ev = Evidence {
+            forecast_steps: Some(625.4),
+            forecast_time: Some(3.13),
+            ..Evidence::default()
+        };
+        assert_eq!(
+            describe(&ev).unwrap_or_default(),
+            "overflow in about 625 steps, near t = 3.1300e0 \
+             (wall time unknown: the rows were not seen arriving)"
+        );
+        ev.forecast_wall_s = Some(41.6);
+        ev.forecast_time = None;
+        assert_eq!(
+            describe(&ev).unwrap_or_default(),
+            "overflow in about 625 steps (42 s wall clock)"
+        );
+        assert_eq!(describe(&Evidence::default()), None);
+    }
+
+    #[test]
+    fn the_clock_fills_time_and_wall_only_when_it_knows_them() {
+        // Growth ×2 per step from 1 reaches 2^10 in 10 steps; 2 steps per row,
+        // 0.5 time units and 3 wall seconds per row.
+        let mut ev = Evidence::default();
+        let mut clock = Clock::default();
+        clock.time = Some(1.0);
+        clock.steps_per_row = Some(2.0);
+        clock.time_per_row = Some(0.5);
+        fill(&mut ev, 1.0, 2.0, 1024.0, &clock);
+        let close = |a: Option<f64>, b: f64| a.is_some_and(|a| (a - b).abs() < 1e-9);
+        assert!(close(ev.forecast_steps, 10.0), "{ev:?}");
+        // 10 steps = 5 rows = 2.5 time units after t = 1.
+        assert!(close(ev.forecast_time, 3.5), "{ev:?}");
+        assert_eq!(ev.forecast_wall_s, None);
+        clock.wall_per_row = Some(3.0);
+        fill(&mut ev, 1.0, 2.0, 1024.0, &clock);
+        assert!(close(ev.forecast_wall_s, 15.0), "{ev:?}");
+    }
 
     #[test]
     fn ten_decades_at_known_factors() {

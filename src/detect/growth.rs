@@ -499,11 +499,8 @@ fn critical_message(
     if let Some(l) = ev.onset_line {
         s += &format!("; it started near line {l}");
     }
-    if let Some(n) = ev.forecast_steps {
-        s += &format!("; overflow in about {n:.0} steps");
-        if let Some(w) = ev.forecast_wall_s {
-            s += &format!(" ({w:.0} s wall clock)");
-        }
+    if let Some(f) = super::forecast::describe(ev) {
+        s += &format!("; {f}");
     }
     s += ".";
     if let Some(t) = ev.onset_time {

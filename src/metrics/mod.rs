@@ -63,7 +63,7 @@ struct Family {
     get: Getter,
 }
 
-fn families() -> [Family; 12] {
+fn families() -> [Family; 13] {
     [
         Family {
             name: "rhoscope_run_state",
@@ -128,8 +128,17 @@ fn families() -> [Family; 12] {
         Family {
             name: "rhoscope_run_overflow_forecast_seconds",
             kind: "gauge",
-            help: "Wall-clock seconds until the growing mode is forecast to overflow, when one is growing (absent once the run has blown up).",
-            get: |r, c| r.forecast_left_s(c.now_s),
+            help: "Wall-clock seconds until the growing mode is forecast to overflow, when one is growing; NaN while its wall-clock pace is unknown (rows read from a backlog); absent once the run has blown up.",
+            get: |r, c| {
+                r.forecast_left_s(c.now_s)
+                    .or(r.readouts.evidence.forecast_steps.map(|_| f64::NAN))
+            },
+        },
+        Family {
+            name: "rhoscope_run_overflow_forecast_steps",
+            kind: "gauge",
+            help: "Solver steps until the growing mode is forecast to overflow, when one is growing (absent once the run has blown up).",
+            get: |r, _| r.readouts.evidence.forecast_steps,
         },
         Family {
             name: "rhoscope_run_last_output_age_seconds",
@@ -285,5 +294,36 @@ mod tests {
         assert_eq!(value(f64::NEG_INFINITY), "-Inf");
         assert_eq!(value(f64::NAN), "NaN");
         assert_eq!(value(1e-300).parse::<f64>().unwrap(), 1e-300);
+    }
+
+    #[test]
+    fn a_forecast_without_a_pace_reads_unknown_not_zero() {
+        let mut r = RunRow::new("r".into(), PathBuf::from("r"));
+        r.arriving(4.0, 100);
+        // From a backlog: steps known, the wall-clock pace not.
+        let status = |evidence| crate::detect::Status {
+            evidence,
+            ..Default::default()
+        };
+        r.take_status(&status(crate::finding::Evidence {
+            forecast_steps: Some(625.0),
+            ..Default::default()
+        }));
+        let text = render(&[&r], &ctx());
+        assert!(text.contains("rhoscope_run_overflow_forecast_seconds{run=\"r\"} NaN\n"));
+        assert!(text.contains("rhoscope_run_overflow_forecast_steps{run=\"r\"} 625\n"));
+        // Live: 30 s forecast at t = 4 s reads 24 s at t = 10 s.
+        r.take_status(&status(crate::finding::Evidence {
+            forecast_steps: Some(625.0),
+            forecast_wall_s: Some(30.0),
+            ..Default::default()
+        }));
+        let text = render(&[&r], &ctx());
+        assert!(text.contains("rhoscope_run_overflow_forecast_seconds{run=\"r\"} 24\n"));
+        // No growing mode: no sample at all.
+        r.take_status(&status(crate::finding::Evidence::default()));
+        let text = render(&[&r], &ctx());
+        assert!(!text.contains("rhoscope_run_overflow_forecast_seconds{"));
+        assert!(!text.contains("rhoscope_run_overflow_forecast_steps{"));
     }
 }

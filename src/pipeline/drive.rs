@@ -7,7 +7,8 @@
 //! detectors' status or stop the reading.
 //!
 //! Following, the behaviour every consumer shares, decided once here:
-//! - the bytes that were in the file when following began are the backlog;
+//! - the bytes that were in the file when following began are the backlog,
+//!   fed without an arrival instant (their wall-clock pace is unknown);
 //!   [`Note::CaughtUp`] is told once, when the backlog is read (or the source
 //!   has nothing more right now, or the file was restarted);
 //! - a truncated, replaced or rewritten file is told as [`Note::Restarted`],
@@ -171,7 +172,10 @@ impl Follow {
                     && let Some(left) = self.backlog_left
                 {
                     let k = usize::try_from(left).unwrap_or(usize::MAX).min(rest.len());
-                    if self.feed(&rest[..k], arrival_s, pipeline, sink) == Flow::Stop {
+                    // Backlog rows were written before following began: they
+                    // are fed without an arrival instant, so the detectors
+                    // take no wall-clock pace from how fast they were read.
+                    if self.feed(&rest[..k], None, pipeline, sink) == Flow::Stop {
                         return Polled::Stopped;
                     }
                     let left = left - k as u64;
@@ -181,7 +185,7 @@ impl Follow {
                         self.catch_up(pipeline, sink);
                     }
                 }
-                if self.feed(rest, arrival_s, pipeline, sink) == Flow::Stop {
+                if self.feed(rest, Some(arrival_s), pipeline, sink) == Flow::Stop {
                     return Polled::Stopped;
                 }
                 Polled::Data(bytes.len())
@@ -245,13 +249,13 @@ impl Follow {
     fn feed(
         &mut self,
         bytes: &[u8],
-        arrival_s: f64,
+        arrival_s: Option<f64>,
         pipeline: &mut Pipeline,
         sink: &mut dyn Sink,
     ) -> Flow {
         for slice in bytes.chunks(self.slice_bytes) {
-            pipeline.feed(slice, Some(arrival_s), sink);
-            if sink.checkpoint(Some(arrival_s), pipeline) == Flow::Stop {
+            pipeline.feed(slice, arrival_s, sink);
+            if sink.checkpoint(arrival_s, pipeline) == Flow::Stop {
                 return Flow::Stop;
             }
         }
@@ -347,6 +351,30 @@ mod tests {
                 "checkpoint"
             ]
         );
+    }
+
+    #[test]
+    fn backlog_bytes_carry_no_arrival_instant_and_live_bytes_do() {
+        // What reaches the detectors' clock: backlog rows were not seen
+        // arriving, so they must not give a wall-clock pace.
+        struct Arrivals(Vec<Option<f64>>);
+        impl Sink for Arrivals {
+            fn alarm(&mut self, _a: &Alarm) {}
+            fn checkpoint(&mut self, arrival_s: Option<f64>, _p: &mut dyn Progress) -> Flow {
+                self.0.push(arrival_s);
+                Flow::Go
+            }
+        }
+        let mut source = Scripted::new(vec![data(b"t x\n0 1\n1 2\n"), data(b"2 3\n")]);
+        source.start_size = Some(8);
+        let mut pipeline = Pipeline::new(&Settings::default());
+        let mut sink = Arrivals(Vec::new());
+        let t0 = Instant::now();
+        let mut f = Follow::new(t0, 1 << 20);
+        let later = t0 + std::time::Duration::from_secs(2);
+        f.poll(&mut source, &mut pipeline, &mut sink, later);
+        f.poll(&mut source, &mut pipeline, &mut sink, later);
+        assert_eq!(sink.0, [None, Some(2.0), Some(2.0)]);
     }
 
     #[test]

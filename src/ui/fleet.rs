@@ -38,7 +38,8 @@ fn state_symbol(s: RunState) -> &'static str {
 /// The table's cells for one run, worded once for the fleet view and the
 /// headless table: state word, done, simulated time, growth per step (`≈`
 /// before a latest fit's, nothing for a growth the checks did not confirm),
-/// time to overflow (or when the run already blew up), time since output.
+/// time to overflow (steps while the pace is unknown, or that the run already
+/// blew up), time since output.
 pub struct Cells {
     pub state: String,
     pub done: String,
@@ -57,9 +58,24 @@ impl Cells {
             Standing::Confirmed => format::num(g.growth_per_step(), 6),
             Standing::NoEstimate | Standing::NotConfirmed => "—".into(),
         };
-        let overflow = match g.blow_up {
-            Some(_) => "blew up".into(),
-            None => format::duration(r.forecast_left_s(now_s)),
+        // Wall time left, else the steps left while the run's pace is unknown
+        // (a growth read from a backlog): wall seconds are never made up.
+        let overflow = match (
+            g.blow_up,
+            r.forecast_left_s(now_s),
+            g.evidence.forecast_steps,
+        ) {
+            (Some(_), _, _) => "blew up".into(),
+            (None, Some(w), _) => format::duration(Some(w)),
+            (None, None, Some(n)) => {
+                let n = n.max(0.0).round() as u64;
+                format!(
+                    "{} {}",
+                    format::count(n),
+                    if n == 1 { "step" } else { "steps" }
+                )
+            }
+            (None, None, None) => format::duration(None),
         };
         Self {
             state: r.state(now_s, stall_after_s).word().into(),
