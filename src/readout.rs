@@ -133,7 +133,9 @@ impl Readouts {
             e.onset_line = Some(line);
             e.onset_time = time;
         }
-        if self.blow_up.is_some() {
+        // A forecast only for a growth the checks confirmed, and none once the
+        // run has blown up.
+        if self.blow_up.is_some() || self.growth != Standing::Confirmed {
             e.forecast_steps = None;
             e.forecast_time = None;
             e.forecast_wall_s = None;
@@ -175,6 +177,7 @@ mod tests {
         assert_eq!(r.growth_per_step(), None);
         assert_eq!(r.evidence.growth_rate_per_s, None);
         assert_eq!(r.evidence.frequency_hz, None);
+        assert_eq!(r.evidence.forecast_steps, None);
         assert_eq!(r.growth_level, Level::Ok);
         // The balance reading keeps its value and the energy detector's level.
         assert_eq!(r.evidence.balance_error, Some(-0.155));
@@ -189,6 +192,8 @@ mod tests {
         assert_eq!(r.growth_per_step(), Some(0.9986));
         r.status(&status(1.0004, false, &[]));
         assert_eq!(r.growth, Standing::Approximate);
+        // A latest fit is shown, but forecasts nothing.
+        assert_eq!(r.evidence.forecast_steps, None);
         // A confirmed mode the detectors judged physical (no alarm) is shown
         // at Ok; one they alarmed on at the alarm's level.
         r.status(&status(1.03, true, &[]));

@@ -301,11 +301,14 @@ mod tests {
         let mut r = RunRow::new("r".into(), PathBuf::from("r"));
         r.arriving(4.0, 100);
         // From a backlog: steps known, the wall-clock pace not.
-        let status = |evidence| crate::detect::Status {
+        // A confirmed growing mode: the readouts forecast only for one.
+        let status = |evidence: crate::finding::Evidence| crate::detect::Status {
+            growth_confirmed: evidence.growth_per_step.is_some(),
             evidence,
             ..Default::default()
         };
         r.take_status(&status(crate::finding::Evidence {
+            growth_per_step: Some(1.05),
             forecast_steps: Some(625.0),
             ..Default::default()
         }));
@@ -314,6 +317,7 @@ mod tests {
         assert!(text.contains("rhoscope_run_overflow_forecast_steps{run=\"r\"} 625\n"));
         // Live: 30 s forecast at t = 4 s reads 24 s at t = 10 s.
         r.take_status(&status(crate::finding::Evidence {
+            growth_per_step: Some(1.05),
             forecast_steps: Some(625.0),
             forecast_wall_s: Some(30.0),
             ..Default::default()
