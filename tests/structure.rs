@@ -55,7 +55,7 @@ const MAX_LINES: usize = 600;
 /// Files over the limit today, each being split by the module's owner. A file
 /// listed here that is back within the limit fails the test, so the list only
 /// shrinks.
-const OVER_LIMIT_NOW: &[&str] = &["detect/growth.rs"];
+const OVER_LIMIT_NOW: &[&str] = &[];
 
 /// A module path inside the crate, e.g. `["pipeline", "drive"]`.
 type ModPath = Vec<String>;
