@@ -14,6 +14,7 @@ pub mod cli;
 pub mod commands;
 pub mod demo;
 pub mod detect;
+pub mod envelope;
 pub mod evaluate;
 pub mod finding;
 pub mod fleet;

@@ -13,6 +13,7 @@ use std::path::{Path, PathBuf};
 const LAYERS: &[&str] = &[
     "finding",
     "scale",
+    "envelope",
     "alarm",
     "schemes",
     "parse",

@@ -1,20 +1,19 @@
 //! Columnar history of a run for the dashboard: x (simulated time, or line number
 //! when the file has no time column) stored once, each signal as its own column;
-//! full resolution for a recent window of rows and a min/max [`envelope`] of the
-//! whole run, so memory is bounded and a 10⁸-row run draws as fast as a short
+//! full resolution for a recent window of rows and a min/max [`Envelope`] of
+//! each column over the whole run, so memory is bounded and a 10⁸-row run draws as fast as a short
 //! one. [`Table::points`] downsamples a column to a panel's width. Pure: no
 //! clock, no terminal, no files.
 
-pub mod envelope;
 pub mod trend;
 
 use std::collections::VecDeque;
 
-use envelope::Envelope;
+use crate::envelope::Envelope;
 
 /// Default number of recent rows kept at full resolution.
 pub const DEFAULT_RETENTION_ROWS: usize = 20_000;
-/// Default number of envelope buckets for the whole run.
+/// Default number of envelope buckets per column for the whole run.
 pub const DEFAULT_ENVELOPE_BUCKETS: usize = 1_024;
 
 /// A table of named columns sharing one x column.
@@ -24,7 +23,8 @@ pub struct Table {
     retention_rows: usize,
     recent_x: VecDeque<f64>,
     recent: Vec<VecDeque<f64>>,
-    envelope: Envelope,
+    envelopes: Vec<Envelope>,
+    first_x: Option<f64>,
     breaks: VecDeque<f64>,
     rows: u64,
     last: Vec<f64>,
@@ -49,7 +49,8 @@ impl Table {
             names,
             retention_rows: retention_rows.max(2),
             recent_x: VecDeque::new(),
-            envelope: Envelope::new(envelope_buckets),
+            envelopes: (0..n).map(|_| Envelope::new(envelope_buckets)).collect(),
+            first_x: None,
             breaks: VecDeque::new(),
             rows: 0,
         }
@@ -87,12 +88,11 @@ impl Table {
                 self.last[i] = v;
             }
         }
-        if values.len() >= self.names.len() {
-            self.envelope.push(x, &values[..self.names.len()]);
-        } else {
-            let mut padded = values.to_vec();
-            padded.resize(self.names.len(), f64::NAN);
-            self.envelope.push(x, &padded);
+        for (e, v) in self.envelopes.iter_mut().zip(values) {
+            e.push(x, *v);
+        }
+        if x.is_finite() {
+            self.first_x.get_or_insert(x);
         }
         self.rows += 1;
     }
@@ -112,7 +112,7 @@ impl Table {
 
     /// First and last x of the whole run.
     pub fn x_range(&self) -> Option<(f64, f64)> {
-        let first = self.envelope.buckets().first()?.x_first;
+        let first = self.first_x?;
         let last = *self.recent_x.back()?;
         Some((first, last))
     }
@@ -161,13 +161,10 @@ impl Table {
                 slicer.add(x, v, v);
             }
         } else {
-            for b in self.envelope.buckets() {
-                if b.x_last < x_lo || b.x_first > x_hi {
-                    continue;
-                }
-                if let (Some(lo), Some(hi)) = (b.min.get(col), b.max.get(col)) {
-                    let xm = 0.5 * (b.x_first + b.x_last);
-                    slicer.add(xm, *lo, *hi);
+            let points = self.envelopes.get(col).map(Envelope::points);
+            for (x, v) in points.unwrap_or_default() {
+                if x >= x_lo && x <= x_hi {
+                    slicer.add(x, v, v);
                 }
             }
         }
@@ -188,7 +185,10 @@ impl Table {
         for c in &mut self.recent {
             c.clear();
         }
-        self.envelope.clear();
+        for e in &mut self.envelopes {
+            e.clear();
+        }
+        self.first_x = None;
         self.breaks.clear();
         self.rows = 0;
         self.last.fill(f64::NAN);

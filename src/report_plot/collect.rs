@@ -10,8 +10,8 @@ use crate::parse::roles::{EnergyTerm, Role, RoleMap};
 use crate::parse::{Schema, SegmentReason, SkipReason};
 use crate::pipeline::sink::{Flow, Note, Progress, Sink};
 
-use super::envelope::Envelope;
 use super::{Marker, MarkerKind, PlotData, Series, TitleBlock};
+use crate::envelope::Envelope;
 
 /// Forwards everything to a report sink and to a [`PlotCollector`].
 pub struct Tee<'a> {

@@ -6,12 +6,11 @@
 //! greyscale print.
 //!
 //! [`PlotCollector`] gathers the data as a [`crate::pipeline::sink::Sink`]
-//! (min/max envelopes, bounded memory); [`render_svg`] and [`render_png`] turn
+//! (one [`crate::envelope::Envelope`] per series, bounded memory); [`render_svg`] and [`render_png`] turn
 //! a [`PlotData`] into bytes. No files here: the caller writes the bytes.
 
 pub mod collect;
 mod draw;
-pub mod envelope;
 
 use std::path::Path;
 

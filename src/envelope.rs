@@ -1,5 +1,6 @@
 //! Streaming min/max envelope of one series, for plotting histories of any
-//! length in bounded memory.
+//! length in bounded memory: the dashboard's whole-run view of each column
+//! (`history`) and the report image's series (`report_plot`). Pure.
 //!
 //! Samples fall into buckets of equal row count; each bucket keeps its first,
 //! last, lowest and highest sample (the M4 aggregation: Jugel, Masseglia,
@@ -123,6 +124,15 @@ impl Envelope {
         self.per_bucket *= 2;
     }
 
+    /// Forget every sample (the bucket budget stays).
+    pub fn clear(&mut self) {
+        self.per_bucket = 1;
+        self.buckets.clear();
+        self.open = None;
+        self.samples = 0;
+        self.non_finite = 0;
+    }
+
     /// Finite samples pushed.
     pub fn samples(&self) -> u64 {
         self.samples
@@ -226,5 +236,9 @@ mod tests {
         assert_eq!(e.non_finite(), 2);
         // x order is kept within and across buckets for a monotone x.
         assert!(pts.windows(2).all(|w| w[0].0 <= w[1].0));
+        e.clear();
+        assert!(e.is_empty() && e.points().is_empty() && e.non_finite() == 0);
+        e.push(1.0, 2.0);
+        assert_eq!(e.points(), vec![(1.0, 2.0)]);
     }
 }
