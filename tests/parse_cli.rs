@@ -283,6 +283,62 @@ fn a_time_only_header_says_where_its_stride_comes_from() {
     );
 }
 
+/// A step size given with the flag and another declared by the file: `columns`
+/// says which one is used, whether or not the reader needed it for the time or
+/// the stride.
+#[test]
+fn a_given_step_size_and_a_declared_one_say_which_is_used() {
+    let dir = tempfile::tempdir().unwrap();
+    let columns = |path: &std::path::Path, args: &[&str]| {
+        let out = bin()
+            .args(["columns", "--no-config"])
+            .args(args)
+            .arg(path)
+            .output()
+            .unwrap();
+        String::from_utf8_lossy(&out.stdout).into_owned()
+    };
+    let rows: String = (0..20)
+        .map(|i| format!("{i} {}\n", f64::from(i).sin()))
+        .collect();
+    // Step counter, no time: the step size makes the time.
+    let log = write(
+        &dir,
+        "md.log",
+        format!("timestep 0.005\nStep x\n{rows}").as_bytes(),
+    );
+    let text = columns(&log, &[]);
+    assert!(
+        text.contains("Step × 5e-3, the step size 5e-3 declared at line 1"),
+        "{text}"
+    );
+    let text = columns(&log, &["--step-size", "2e-3"]);
+    assert!(
+        text.contains("Step × 2e-3, the step size 2e-3 given with --step-size")
+            && text.contains("the file's declared step size 5e-3 gives way to the one given"),
+        "{text}"
+    );
+    // Time and step columns: the step size is not needed, but the choice is said.
+    let rows: String = (0..20)
+        .map(|i| format!("{},{i},1\n", f64::from(i) * 1e-3))
+        .collect();
+    let csv = write(
+        &dir,
+        "h.csv",
+        format!("# dt = 1e-3\ntime,step,x\n{rows}").as_bytes(),
+    );
+    let text = columns(&csv, &[]);
+    assert!(
+        text.contains("the file declares a step size of 1e-3"),
+        "{text}"
+    );
+    let text = columns(&csv, &["--step-size", "2e-3"]);
+    assert!(
+        text.contains("the step size 2e-3 given with --step-size (or input.step_size) comes before the file's declared 1e-3"),
+        "{text}"
+    );
+}
+
 /// Central difference on two uncoupled modes, the high one past its limit
 /// (Ω = 2.02) from rounding-level amplitude, written every `every` steps of
 /// 1e-3 as time and two probes, without a step counter.

@@ -90,7 +90,11 @@ pub fn run(args: ColumnsArgs) -> anyhow::Result<i32> {
     } else {
         let mut t = preface(&sink);
         t.push_str(&table(&columns));
-        t.push_str(&notes(&sink, pipeline.scheme_note()));
+        t.push_str(&notes(
+            &sink,
+            pipeline.scheme_note(),
+            settings.parse.step_size,
+        ));
         t
     };
     super::out::print(&text)?;
@@ -103,7 +107,7 @@ fn preface(sink: &FirstColumns) -> String {
 }
 
 /// What the reader inferred and noticed, after the table.
-fn notes(sink: &FirstColumns, scheme: Option<&str>) -> String {
+fn notes(sink: &FirstColumns, scheme: Option<&str>, given_step: Option<f64>) -> String {
     let t = &sink.table;
     let mut lines: Vec<String> = t.notes.clone();
     if sink.outside > 0 {
@@ -113,10 +117,7 @@ fn notes(sink: &FirstColumns, scheme: Option<&str>) -> String {
         ));
     }
     lines.extend(scheme.map(str::to_owned));
-    let said = t.notes.iter().any(|n| n.contains("declared at line"));
-    if let Some(dt) = t.declared_step_size.filter(|_| !said) {
-        lines.push(format!("the file declares a step size of {dt:e}"));
-    }
+    lines.extend(step_note(t, given_step));
     lines.extend(sink.notes.iter().cloned());
     let mut s = String::new();
     for l in lines {
@@ -125,6 +126,29 @@ fn notes(sink: &FirstColumns, scheme: Option<&str>) -> String {
         s.push('\n');
     }
     s
+}
+
+/// Which step size is used, when the reader's notes have not said it: the file's
+/// declaration, and a given one (`--step-size`, `input.step_size`) that comes
+/// before it.
+fn step_note(t: &TableEntry, given: Option<f64>) -> Option<String> {
+    let said = |what: &str| t.notes.iter().any(|n| n.contains(what));
+    let (said_declared, said_given) = (said("declared at line"), said("given with --step-size"));
+    match (given, t.declared_step_size) {
+        (None, Some(dt)) if !said_declared => {
+            Some(format!("the file declares a step size of {dt:e}"))
+        }
+        (Some(g), None) if !said_given => Some(format!(
+            "the step size {g:e} given with --step-size (or input.step_size) is used where no column holds one"
+        )),
+        (Some(_), Some(dt)) if said_given => Some(format!(
+            "the file's declared step size {dt:e} gives way to the one given"
+        )),
+        (Some(g), Some(dt)) => Some(format!(
+            "the step size {g:e} given with --step-size (or input.step_size) comes before the file's declared {dt:e}"
+        )),
+        _ => None,
+    }
 }
 
 /// The human table: column, unit, role, why.
