@@ -77,6 +77,8 @@ pub struct LogFacts {
     pub header1: u64,
     pub header2: u64,
     pub warning: u64,
+    /// The line declaring the second run's step size, 0.002.
+    pub step2: u64,
     pub rows: usize,
     pub outside: u64,
 }
@@ -85,7 +87,8 @@ pub struct LogFacts {
 /// output described for the `thermo_style` command in the LAMMPS manual):
 /// echoed input commands and a setup block, a header line of keywords, a row
 /// every 50 steps, run statistics; then a second run whose header prints other
-/// keywords. Values come from an invented cooling lattice, not from a solver.
+/// keywords and runs at a smaller step (`timestep 0.002`). Values come from an
+/// invented cooling lattice, not from a solver.
 /// With `blow_up`, the second run's energies grow tenfold a row and turn NaN.
 pub fn particle_log(blow_up: bool) -> LogFacts {
     let mut t = Text::default();
@@ -151,12 +154,13 @@ pub fn particle_log(blow_up: bool) -> LogFacts {
         "---------------------------------------------------------------",
         "Pair    | 0.030      | 0.030      | 0.030      |   0.0 | 66.8",
         "Total wall time: 0:00:00",
+        "timestep 0.002",
         "run 100",
         "Setting up Verlet run ...",
-        "  Time step     : 0.005",
     ] {
         text(&mut t, s);
     }
+    let step2 = text(&mut t, "  Time step     : 0.002");
     let header2 = t.push("   Step          Temp          PotEng         KinEng         TotEng         Press          Volume");
     for i in 0..5 {
         let grow = if blow_up { 10f64.powi(i) } else { 1.0 };
@@ -186,6 +190,7 @@ pub fn particle_log(blow_up: bool) -> LogFacts {
         header1,
         header2,
         warning,
+        step2,
         rows,
         outside,
     }
@@ -213,8 +218,10 @@ fn solver_log_finds_its_tables_and_keeps_text_out_of_the_counts() {
     // Only the warning inside the first table is a skipped row.
     assert_eq!(skipped_rows(&ev), [f.warning]);
     assert_eq!(outside(&ev), f.outside);
-    // The echoed `timestep 0.005` is read as a declared step size.
+    // The echoed `timestep 0.005` is read as a declared step size, and the
+    // second run's, declared between the two tables, is the second's.
     assert_eq!(ev.full[0].declared.step_size.map(|(_, v)| v), Some(0.005));
+    assert_eq!(ev.full[1].declared.step_size, Some((f.step2, 0.002)));
     // The second table's energies get their roles: parts of the potential
     // energy give way to PotEng (issue 13, failure class 1).
     let roles = assign(&ev.full[1], &RoleRules::default());
@@ -509,4 +516,27 @@ fn a_comment_declares_the_scheme() {
         ev.full.last().and_then(|s| s.declared.scheme.clone()),
         Some((2, "Newmark beta=0.25 gamma=0.5".to_owned()))
     );
+}
+
+/// A step size printed inside a table, with rows of the same table after it,
+/// is a skipped line of that table, not a declaration for the next run; one
+/// printed between two runs is the next run's (the `timestep` command echoed
+/// before `run`, LAMMPS manual, `timestep`).
+#[test]
+fn a_step_size_inside_a_table_is_not_a_declaration() {
+    let mut t = Text::default();
+    t.push("timestep 0.005");
+    let header = t.push("Step Temp TotEng");
+    for i in 0..4 {
+        t.push(format!("{} 1.0 -2.0", i * 10));
+    }
+    let inside = t.push("dt = 0.001");
+    for i in 4..8 {
+        t.push(format!("{} 1.0 -2.0", i * 10));
+    }
+    let ev = same_however_cut(&t.bytes());
+    assert_eq!(ev.full.len(), 1);
+    assert_eq!(ev.full[0].names_from, NamesFrom::HeaderLine(header));
+    assert_eq!(ev.full[0].declared.step_size, Some((1, 0.005)));
+    assert_eq!(skipped_rows(&ev), [inside]);
 }

@@ -55,6 +55,9 @@ pub(super) struct Table {
     inside: bool,
     /// Text lines since the last row of the table in force.
     held: Vec<(u64, SkipReason)>,
+    /// Step sizes declared by held lines (`timestep 0.002` between two runs):
+    /// they apply once those lines turn out to be outside the table.
+    held_steps: Vec<(u64, f64)>,
     block: Option<Block>,
     candidate: Option<Candidate>,
     /// Rows of a table awaiting confirmation: a headerless one, or one whose
@@ -126,7 +129,7 @@ impl Table {
         if !self.pending.is_empty() {
             self.establish_headerless(cur, sink);
         }
-        self.held_to_block();
+        self.held_to_block(cur);
         self.candidate_to_block();
         self.report_block(sink);
     }
@@ -148,7 +151,7 @@ impl Table {
                 if let Some(i) = c.held_at {
                     self.held.truncate(i);
                 }
-                self.held_to_block();
+                self.held_to_block(cur);
                 self.report_block(sink);
                 sink.segment(c.line, SegmentReason::NewHeader);
                 self.start(c.line, cols, d, cur, sink);
@@ -242,10 +245,13 @@ impl Table {
                 return;
             }
             if self.held.len() >= MAX_HELD {
-                self.held_to_block();
+                self.held_to_block(cur);
                 self.report_block(sink);
             }
             self.held.push((l.no, SkipReason::NotANumber { field }));
+            if let Some(v) = declared_step(l.text) {
+                self.held_steps.push((l.no, v));
+            }
             match kind {
                 Some(LineKind::Header) => {
                     self.candidate = Some(Candidate {
@@ -279,8 +285,7 @@ impl Table {
 
     /// A step size declared by a text line outside the table.
     fn declaration(&self, l: &Line, cur: &mut Current) {
-        let (s, _) = header::decode(l.text);
-        if let Some(v) = super::declare::step_size(&s) {
+        if let Some(v) = declared_step(l.text) {
             cur.declared.step_size = Some((l.no, v));
         }
     }
@@ -449,13 +454,21 @@ impl Table {
     /// Held text lines turn out to be inside the table: skipped, in order.
     fn held_skipped(&mut self, sink: &mut dyn RowSink) {
         self.candidate = None;
+        self.held_steps.clear();
         for (no, why) in self.held.drain(..) {
             sink.skipped(no, why);
         }
     }
 
-    /// Held text lines turn out to be after the table.
-    fn held_to_block(&mut self) {
+    /// Held text lines turn out to be after the table; the step sizes they
+    /// declare are the file's from now on.
+    fn held_to_block(&mut self, cur: &mut Current) {
+        let kept = self.held.last().map_or(0, |(no, _)| *no);
+        for (no, v) in self.held_steps.drain(..) {
+            if no <= kept {
+                cur.declared.step_size = Some((no, v));
+            }
+        }
         let held = std::mem::take(&mut self.held);
         for (no, _) in held {
             self.add_to_block(no);
@@ -510,6 +523,11 @@ struct Header {
     latin1: bool,
     /// Number of names when it differs from the number of fields.
     mismatch: Option<usize>,
+}
+
+/// The step size a text line declares (`timestep 0.005`), if any.
+fn declared_step(text: &[u8]) -> Option<f64> {
+    super::declare::step_size(&header::decode(text).0)
 }
 
 /// At least half of `new`'s names (and two or more) appear in `old`.
