@@ -61,8 +61,10 @@ fn history(rows: usize) -> String {
 fn a_file_that_shrinks_during_a_scan_is_noted() {
     let dir = tempfile::tempdir().unwrap();
     let p = dir.path().join("h.csv");
-    // Larger than one read (FILE_SLICE_BYTES), so the scan reads again after the cut.
-    let text = history(300_000);
+    // Larger than one read (FILE_READ_BYTES, 4 MiB), so the scan reads again
+    // after the cut.
+    let text = history(1_000_000);
+    assert!(text.len() > 2 * rhoscope::pipeline::drive::FILE_READ_BYTES);
     fs::write(&p, &text).unwrap();
     let size = text.len() as u64;
     let mut pipeline = Pipeline::new(&Settings::default());

@@ -4,7 +4,9 @@
 //! a followed [`Source`] into pipeline input (`guard`, the dashboard's data
 //! thread, each run of the fleet). Both hand the bytes on in slices with a
 //! [`checkpoint`](Sink::checkpoint) after each, where the sink may sample the
-//! detectors' status or stop the reading.
+//! detectors' status or stop the reading, through
+//! [`Pipeline::feed_slices`], which reads a large run of bytes (a plain file,
+//! a backlog) on a second thread ([`super::split`]).
 //!
 //! Following, the behaviour every consumer shares, decided once here:
 //! - the bytes that were in the file when following began are the backlog,
@@ -30,6 +32,9 @@ use crate::source::{Event, Source};
 
 /// Bytes fed per slice when reading a plain file.
 pub const FILE_SLICE_BYTES: usize = 1 << 20;
+/// Bytes read from a plain file at a time; each read is fed on two threads
+/// ([`super::split`]).
+pub const FILE_READ_BYTES: usize = 4 << 20;
 
 /// Open `path` for reading as a history, with a one-line error naming the file.
 pub fn open_history(path: &Path) -> anyhow::Result<(File, u64)> {
@@ -56,7 +61,7 @@ pub fn drive_file(
     on_read: &mut dyn FnMut(u64, u64),
 ) -> anyhow::Result<u64> {
     let (mut file, size) = open_history(path)?;
-    let mut buf = vec![0u8; FILE_SLICE_BYTES.max(slice_bytes)];
+    let mut buf = vec![0u8; FILE_READ_BYTES.max(slice_bytes)];
     let mut total = 0u64;
     loop {
         let n = match file.read(&mut buf) {
@@ -68,11 +73,8 @@ pub fn drive_file(
             }
         };
         total += n as u64;
-        for slice in buf[..n].chunks(slice_bytes.max(1)) {
-            pipeline.feed(slice, None, sink);
-            if sink.checkpoint(None, pipeline) == Flow::Stop {
-                return Ok(total);
-            }
+        if pipeline.feed_slices(&buf[..n], None, sink, slice_bytes) == Flow::Stop {
+            return Ok(total);
         }
         on_read(total, size);
     }
@@ -90,8 +92,12 @@ pub fn drive_file(
 /// Read a whole history held in memory through `pipeline` into `sink`, as
 /// [`drive_file`] reads a file (one slice, then the end).
 pub fn drive_bytes(bytes: &[u8], pipeline: &mut Pipeline, sink: &mut dyn Sink) {
-    pipeline.feed(bytes, None, sink);
-    if sink.checkpoint(None, pipeline) == Flow::Stop {
+    let flow = if bytes.is_empty() {
+        sink.checkpoint(None, pipeline)
+    } else {
+        pipeline.feed_slices(bytes, None, sink, bytes.len())
+    };
+    if flow == Flow::Stop {
         return;
     }
     pipeline.finish(sink);
@@ -253,13 +259,7 @@ impl Follow {
         pipeline: &mut Pipeline,
         sink: &mut dyn Sink,
     ) -> Flow {
-        for slice in bytes.chunks(self.slice_bytes) {
-            pipeline.feed(slice, arrival_s, sink);
-            if sink.checkpoint(arrival_s, pipeline) == Flow::Stop {
-                return Flow::Stop;
-            }
-        }
-        Flow::Go
+        pipeline.feed_slices(bytes, arrival_s, sink, self.slice_bytes)
     }
 
     fn catch_up(&mut self, pipeline: &Pipeline, sink: &mut dyn Sink) {

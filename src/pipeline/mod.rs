@@ -4,11 +4,13 @@
 //! ([`sink`]). [`drive`] holds the only loops that feed it — over a plain file
 //! (`scan`, `evaluate`) and over a followed file's events (`guard`, the
 //! dashboard's data thread, the fleet) — so they all give the same alarms,
-//! line for line, on the same bytes. The pipeline itself does no I/O and reads
-//! no clock: arrival instants come in as data.
+//! line for line, on the same bytes; [`split`] reads large runs of bytes on a
+//! second thread with the same result. The pipeline itself does no I/O and
+//! reads no clock: arrival instants come in as data.
 
 pub mod drive;
 pub mod sink;
+pub mod split;
 
 use crate::alarm::AlarmBook;
 use crate::detect::{DetectSettings, Engine, Sample, Status};
@@ -99,6 +101,15 @@ impl RowSink for Adapter<'_> {
     }
 }
 
+impl State {
+    fn status(&mut self) -> &Status {
+        match self.engine.as_mut() {
+            Some(e) => e.status(),
+            None => &self.empty,
+        }
+    }
+}
+
 impl Pipeline {
     /// A pipeline reading with these settings.
     pub fn new(settings: &Settings) -> Pipeline {
@@ -154,10 +165,7 @@ impl Pipeline {
 
     /// Latest detector estimates (for the dashboard).
     pub fn status(&mut self) -> &Status {
-        match self.state.engine.as_mut() {
-            Some(e) => e.status(),
-            None => &self.state.empty,
-        }
+        self.state.status()
     }
 
     /// Which integration scheme the detectors use and where it came from

@@ -8,6 +8,7 @@ use rhoscope::act::{Escalation, EscalationConfig, EventLog};
 use rhoscope::alarm::Alarm;
 use rhoscope::guard::{SuperviseOptions, supervise};
 use rhoscope::pipeline::Pipeline;
+use rhoscope::pipeline::drive::{FILE_SLICE_BYTES, drive_file};
 use rhoscope::report::ScanReport;
 use rhoscope::settings::Settings;
 use rhoscope::source::{Event, Scripted, Step};
@@ -130,4 +131,35 @@ fn scan_and_guard_agree_on_a_file_written_live() {
         .collect();
     assert!(scan.len() >= 2, "{scan:?}");
     assert_eq!(guard, scan);
+}
+
+/// Over a megabyte: `scan` reads it on two threads (the reader ahead of the
+/// detectors, in 64 KiB batches), and so does guard's catch-up on 1 MiB
+/// reads; both give the alarms of one thread fed the whole bytes.
+#[test]
+fn two_threads_give_the_alarms_of_one() {
+    let text = format!("{HEADER}{}{}", healthy(30_000, 0.0), history());
+    assert!(text.len() > 1 << 20, "{} bytes", text.len());
+    let one = scan_alarms(text.as_bytes());
+    assert!(one.len() >= 2, "{one:?}");
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("h.csv");
+    fs::write(&path, &text).unwrap();
+    let mut p = Pipeline::new(&Settings::default());
+    let mut scanned: Vec<Alarm> = Vec::new();
+    drive_file(
+        &path,
+        &mut p,
+        &mut scanned,
+        FILE_SLICE_BYTES,
+        &mut |_, _| {},
+    )
+    .unwrap();
+    assert_eq!(scanned, one);
+    let want: Vec<_> = one.iter().map(key).collect();
+    let got: Vec<_> = guard_alarms(text.as_bytes(), 1 << 20)
+        .iter()
+        .map(key)
+        .collect();
+    assert_eq!(got, want);
 }
