@@ -213,19 +213,17 @@ pub fn detect(name: &str, unit: Option<&str>) -> (Role, String) {
     }
     let compact: String = norm.chars().filter(|c| *c != ' ').collect();
     let words: Vec<&str> = norm.split(' ').collect();
-    for (role, phrases) in RULES {
-        for phrase in *phrases {
-            let phrase_compact: String = phrase.chars().filter(|c| *c != ' ').collect();
-            let exact = norm == *phrase || compact == phrase_compact;
-            let contained = phrase.contains(' ') && holds_in_order(&words, phrase);
-            if exact || contained {
-                let why = if *role == Role::Probe {
-                    format!("matched \"{phrase}\": wall-clock, not simulated, so a probe")
-                } else {
-                    format!("matched \"{phrase}\"")
-                };
-                return (*role, why);
-            }
+    for p in PHRASES.iter() {
+        let exact = norm == p.text || compact == p.compact;
+        let contained = p.words.len() > 1 && words.windows(p.words.len()).any(|w| w == p.words);
+        if exact || contained {
+            let phrase = p.text;
+            let why = if p.role == Role::Probe {
+                format!("matched \"{phrase}\": wall-clock, not simulated, so a probe")
+            } else {
+                format!("matched \"{phrase}\"")
+            };
+            return (p.role, why);
         }
     }
     if let Some((term, why)) = energy_tokens(name) {
@@ -237,11 +235,30 @@ pub fn detect(name: &str, unit: Option<&str>) -> (Role, String) {
     )
 }
 
-/// The words of `phrase` appear in `words` one after another.
-fn holds_in_order(words: &[&str], phrase: &str) -> bool {
-    let p: Vec<&str> = phrase.split(' ').collect();
-    words.windows(p.len()).any(|w| w == p.as_slice())
+/// A phrase of [`RULES`] with its forms for matching, prepared once: a name
+/// is matched against every phrase, for every column of every header.
+struct Phrase {
+    role: Role,
+    text: &'static str,
+    /// Without its spaces (`timestep`).
+    compact: String,
+    /// Its words, which a longer name may hold one after another.
+    words: Vec<&'static str>,
 }
+
+static PHRASES: std::sync::LazyLock<Vec<Phrase>> = std::sync::LazyLock::new(|| {
+    RULES
+        .iter()
+        .flat_map(|(role, phrases)| {
+            phrases.iter().map(|text| Phrase {
+                role: *role,
+                text,
+                compact: text.chars().filter(|c| *c != ' ').collect(),
+                words: text.split(' ').collect(),
+            })
+        })
+        .collect()
+});
 
 /// `Temp`, `temperature`, or a name with a temperature unit (`T [K]`).
 fn is_temperature(norm: &str, unit: Option<&str>) -> bool {
