@@ -5,7 +5,7 @@
 #![allow(dead_code)]
 
 use rhoscope::alarm::Alarm;
-use rhoscope::parse::roles::{RoleRules, assign};
+use rhoscope::parse::roles::RoleRules;
 use rhoscope::parse::{ParseOptions, Reader, RowSink, Schema, SegmentReason, SkipReason};
 use rhoscope::pipeline::Pipeline;
 use rhoscope::settings::Settings;
@@ -14,11 +14,13 @@ use rhoscope::settings::Settings;
 /// often; the reader's own default is far larger.
 pub const MAX_LINE_BYTES: usize = 256;
 
-/// Everything a reader reports, with values as bit patterns (NaN == NaN) and
-/// the roles given to each schema's columns.
+/// Everything a reader reports, with values as bit patterns (NaN == NaN).
+/// Roles are not recorded: the reader assigns them to every schema it sets
+/// (so they run on every input), and they are a function of the schema, which
+/// is compared whole.
 #[derive(Debug, Default, PartialEq, Eq)]
 pub struct Seen {
-    pub schemas: Vec<(u64, Vec<String>, Vec<String>)>,
+    pub schemas: Vec<(u64, String)>,
     pub rows: Vec<(u64, Vec<u64>)>,
     pub segments: Vec<(u64, String)>,
     pub skipped: Vec<(u64, String)>,
@@ -26,12 +28,7 @@ pub struct Seen {
 
 impl RowSink for Seen {
     fn schema(&mut self, line: u64, schema: &Schema) {
-        let roles = assign(schema, &RoleRules::default());
-        let names = schema.columns.iter().map(|c| c.name.clone()).collect();
-        let roles = (0..schema.columns.len())
-            .map(|i| format!("{:?}", roles.roles.get(i)))
-            .collect();
-        self.schemas.push((line, names, roles));
+        self.schemas.push((line, format!("{schema:?}")));
     }
 
     fn row(&mut self, line: u64, values: &[f64]) {
