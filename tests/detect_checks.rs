@@ -132,10 +132,15 @@ fn buried_central_difference_mode_found_at_print_precision() {
     // Tolerance: at the first alarm the mode is within two decades of the
     // print floor, so its estimate carries that noise.
     assert!((g - rho).abs() < 5e-3, "growth per step {g} vs {rho}");
-    // Onset: the mode crossed print resolution (~1e-5) near this step.
+    // Onset: the mode grows from the first step, and crossed print
+    // resolution (~1e-5) near `visible`; the estimate lies between (an
+    // earlier fit that already followed the mode may pull it back).
     let visible = (1e-5_f64 / seed).ln() / rho.ln();
     let onset = crit.evidence.onset_line.unwrap_or(0) as f64 - 1.0;
-    assert!((onset - visible).abs() < 20.0, "onset {onset} vs {visible}");
+    assert!(
+        onset >= 1.0 && onset < visible + 20.0,
+        "onset {onset} vs {visible}"
+    );
     assert!(crit.message.contains("carry the growing mode"));
 }
 
@@ -205,8 +210,31 @@ fn output_every_k_steps_gives_per_step_factor() {
             (g - rho).abs() < 3e-3,
             "k={k}: growth per step {g} vs {rho}"
         );
-        let crit = alarms.iter().any(|a| a.level == Level::Critical);
-        assert_eq!(crit, k == 3, "k={k}: {alarms:?}");
+        // k = 3: the sign still flips every row. k = 2: the aliased mode
+        // looks monotone, and is called once it has outgrown the stable
+        // response by six decades (the stable mode's amplitude is 1).
+        let crit = alarms
+            .iter()
+            .find(|a| a.level == Level::Critical)
+            .unwrap_or_else(|| panic!("k={k}: {alarms:?}"));
+        if k == 2 {
+            assert!(
+                crit.message.contains("times the largest response"),
+                "{}",
+                crit.message
+            );
+            let mode_at_alarm = 1e-15 * rho.powf(crit.line as f64 * k as f64);
+            assert!(
+                (1e6..1e9).contains(&mode_at_alarm),
+                "k=2: mode {mode_at_alarm:e} at the alarm"
+            );
+        } else {
+            assert!(
+                crit.message.contains("sign-alternating"),
+                "{}",
+                crit.message
+            );
+        }
     }
 }
 
@@ -235,6 +263,149 @@ fn sampled_growing_oscillator_rate_and_frequency() {
         alarms.iter().all(|a| a.level < Level::Critical),
         "{alarms:?}"
     );
+}
+
+/// A growing oscillation at 2 rad per row: x(n) = e^{σn} cos(2n) under a
+/// slow unit response, 6 digits.
+fn fast_growing_rows(with_step: bool) -> (Schema, RoleMap, Vec<Vec<f64>>) {
+    let rows: Vec<Vec<f64>> = (0..1200)
+        .map(|n| {
+            let n = n as f64;
+            let x = (0.05 * n).cos() + 1e-3 * (0.01 * n).exp() * (2.0 * n).cos();
+            vec![n * 1e-3, n, printed(x, 6)]
+        })
+        .collect();
+    let step_role = if with_step {
+        Role::StepNumber
+    } else {
+        Role::Probe
+    };
+    let (schema, roles) = layout(&[("time", Role::Time), ("n", step_role), ("x", Role::Probe)]);
+    let rows = if with_step {
+        rows
+    } else {
+        rows.into_iter().map(|r| vec![r[0], 0.0, r[2]]).collect()
+    };
+    (schema, roles, rows)
+}
+
+/// Above a quarter cycle per row is a numerical signature only when every
+/// step is written: with a step counter rising by one per row the mode is
+/// called; with no way to know the stride (time only) the same rows may be
+/// a slow physical mode written every few steps, and they are not (the mode
+/// grows e^12 from a thousandth of the response here, far from outgrowing it
+/// by six decades).
+#[test]
+fn a_fast_phase_is_numerical_only_when_every_step_is_written() {
+    let (schema, roles, rows) = fast_growing_rows(true);
+    let (alarms, _) = run(&schema, &roles, &rows);
+    assert!(
+        alarms.iter().any(|a| a.level == Level::Critical),
+        "every step written: {alarms:?}"
+    );
+    let (schema, roles, rows) = fast_growing_rows(false);
+    let (alarms, _) = run(&schema, &roles, &rows);
+    assert!(
+        alarms.iter().all(|a| a.level < Level::Critical),
+        "stride unknown: {alarms:?}"
+    );
+}
+
+/// An exact, undamped oscillator written every step whose step is halved
+/// half-way: the sampled sequence changes its one-step map, not its energy.
+/// A window spanning the change is no linear map; the window restarts there.
+#[test]
+fn a_step_change_in_a_healthy_run_raises_nothing() {
+    let (w, mut t, mut dt) = (2.0 * std::f64::consts::PI * 3.0, 0.0, 0.02);
+    let mut rows = Vec::new();
+    for n in 0..3000 {
+        if n == 1500 {
+            dt /= 2.0;
+        }
+        rows.push(vec![
+            printed(t, 9),
+            dt,
+            printed((w * t).cos() + 0.3 * (2.7 * w * t).sin(), 6),
+            printed(0.5 * (w * t).sin() - 0.2 * (2.7 * w * t).cos(), 6),
+        ]);
+        t += dt;
+    }
+    let (schema, roles) = layout(&[
+        ("time", Role::Time),
+        ("dt", Role::StepSize),
+        ("u1", Role::Probe),
+        ("u2", Role::Probe),
+    ]);
+    let (alarms, _) = run(&schema, &roles, &rows);
+    assert!(alarms.is_empty(), "{alarms:?}");
+}
+
+/// A contact spike: a force that rises by decades in two rows and is gone
+/// two rows later, on top of a smooth response. A single fit through it may
+/// show a growing eigenvalue; the mode is not at its largest when the next
+/// fit looks, so nothing is called.
+#[test]
+fn a_contact_spike_is_not_a_growing_mode() {
+    let rows: Vec<Vec<f64>> = (0..600)
+        .map(|n| {
+            let nf = n as f64;
+            let spike = match n {
+                300 => 2.0,
+                301 => 65.0,
+                302 => 67.0,
+                303 => 3.0,
+                _ => 0.0,
+            };
+            vec![nf * 1e-4, nf, printed((0.03 * nf).sin(), 6), spike]
+        })
+        .collect();
+    let (schema, roles) = layout(&[
+        ("time", Role::Time),
+        ("step", Role::StepNumber),
+        ("u", Role::Probe),
+        ("contact", Role::Probe),
+    ]);
+    let (alarms, _) = run(&schema, &roles, &rows);
+    assert!(
+        alarms.iter().all(|a| a.level < Level::Critical),
+        "{alarms:?}"
+    );
+}
+
+/// Right after a restart with a step far past the limit the sign-alternating
+/// mode grows by about 10^5 per row (central difference at Ω = 316:
+/// ρ = Ω² − 2 − 1/ρ ≈ 10^5, Hughes 1987, §9.1, from memory). The first fits
+/// on short windows (8 rows, confirmed a few rows later) call it before a
+/// 16-row window could even be fitted.
+#[test]
+fn a_violent_mode_right_after_a_restart_is_called_within_a_dozen_rows() {
+    let omega: f64 = 316.0;
+    let rho = rho_central_difference(omega);
+    assert!((rho - 99_854.0).abs() < 1.0, "{rho}");
+    let mut rows = Vec::new();
+    let (mut a0, mut a1) = (1.0_f64, 1.0_f64);
+    let mut b1 = 1e-9_f64;
+    for n in 0..40 {
+        let a2 = (2.0 - 0.01 * 0.01) * a1 - a0;
+        (a0, a1) = (a1, a2);
+        b1 *= -rho;
+        if b1.abs() > 1e200 {
+            break;
+        }
+        rows.push(vec![n as f64 * 1e-3, n as f64, printed(a1 + b1, 6)]);
+    }
+    let (schema, roles) = layout(&[
+        ("time", Role::Time),
+        ("step", Role::StepNumber),
+        ("u", Role::Probe),
+    ]);
+    let (alarms, _) = run(&schema, &roles, &rows);
+    let crit = alarms
+        .iter()
+        .find(|a| a.level == Level::Critical)
+        .unwrap_or_else(|| panic!("{alarms:?}"));
+    let rows_in = crit.line - 2 + 1;
+    assert!(rows_in < 16, "called after {rows_in} rows");
 }
 
 #[test]
@@ -345,9 +516,15 @@ fn missing_dissipation_reads_as_absorbed_energy() {
     assert_eq!(warn.level, Level::Warning);
     assert!(warn.message.contains("absorbed"), "{}", warn.message);
     assert!(warn.message.contains("dissipated"), "{}", warn.message);
-    let row = &rows[(warn.line - 2) as usize];
+    // The error is judged against the energy that moves: the largest of the
+    // peak kinetic energy and the range of each term, up to that row.
+    let upto = &rows[..=(warn.line - 2) as usize];
+    let row = &upto[upto.len() - 1];
     let e0 = rows[0][1] + rows[0][2];
-    let expected = (row[1] + row[2] - e0) / e0;
+    let peak = |j: usize| upto.iter().map(|r| r[j]).fold(f64::MIN, f64::max);
+    let low = |j: usize| upto.iter().map(|r| r[j]).fold(f64::MAX, f64::min);
+    let scale = peak(1).max(peak(1) - low(1)).max(peak(2) - low(2));
+    let expected = (row[1] + row[2] - e0) / scale;
     let got = warn.evidence.balance_error.unwrap_or(f64::NAN);
     // Tolerance: 6-digit printing.
     assert!((got - expected).abs() < 1e-5, "{got} vs {expected}");
@@ -456,4 +633,68 @@ fn collapsing_step_is_critical_and_a_recovering_dip_is_not() {
         .collect();
     let (alarms, _) = run(&schema, &roles, &cut);
     assert!(alarms.is_empty(), "{alarms:?}");
+}
+
+/// A particle run: kinetic energy near 12 J exchanged with a pair energy near
+/// −4,000 J (an arbitrary zero), the total conserved to print precision.
+/// `extra(n)` is energy added to the kinetic term at row n.
+fn particle_rows(rows: usize, extra: impl Fn(usize) -> f64) -> Vec<Vec<f64>> {
+    let mut noise = Lcg(7);
+    (0..rows)
+        .map(|n| {
+            let t = n as f64 * 0.01;
+            let kin = 12.0 + 1.5 * (3.0 * t).sin() + 0.2 * noise.next();
+            let pot = -4000.0 - (kin - 12.0);
+            let kin = kin + extra(n);
+            vec![t, printed(kin, 7), printed(pot, 7), printed(kin + pot, 7)]
+        })
+        .collect()
+}
+
+/// Class 6: energy created faster and faster that never prints a NaN is a
+/// runaway, judged against the energy that moves (the kinetic energy, not
+/// |total| ≈ 4,000 J, against which even 100 J created is 2.5 %); energy
+/// added at a steady pace that slows (a thermostat heating the system
+/// toward its target, 1 − e^(−t/τ)) is at most a warning.
+#[test]
+fn a_finite_runaway_is_critical_and_steady_heating_is_not() {
+    let (schema, roles) = layout(&[
+        ("time", Role::Time),
+        ("kinetic", Role::Energy(EnergyTerm::Kinetic)),
+        ("pair", Role::Energy(EnergyTerm::Internal)),
+        ("total", Role::Energy(EnergyTerm::Total)),
+    ]);
+    // From row 400 the created energy grows as exp(0.004·(n − 400)^1.6):
+    // each doubling shorter than the last; 12 J (one scale) near row 470,
+    // 100 J near row 500 — finite throughout.
+    let runaway = |n: usize| {
+        let s = n.saturating_sub(400) as f64;
+        if n < 400 {
+            0.0
+        } else {
+            0.01 * ((0.004 * s.powf(1.6)).exp() - 1.0)
+        }
+    };
+    let rows = particle_rows(520, runaway);
+    let (alarms, _) = run(&schema, &roles, &rows);
+    let crit = alarms
+        .iter()
+        .find(|a| a.level == Level::Critical)
+        .unwrap_or_else(|| panic!("runaway not called: {alarms:?}"));
+    assert_eq!(crit.detector, "energy", "{}", crit.message);
+    assert!(crit.message.contains("created"), "{}", crit.message);
+    // Judged against the kinetic energy: about 1 J created is several per
+    // cent of it (of |total| it would be 0.03 %).
+    let rel = crit.evidence.balance_error.unwrap_or(0.0);
+    assert!(rel > 0.03, "balance error {rel}");
+    // Before the created energy reaches 100 J, and not before row 400.
+    let line = crit.line as usize - 2;
+    assert!((420..500).contains(&line), "called at row {line}");
+    // Heating: 30 J added over the run as 1 − e^(−t/τ), τ = 150 rows.
+    let heating = particle_rows(1200, |n| 30.0 * (1.0 - (-(n as f64) / 150.0).exp()));
+    let (alarms, _) = run(&schema, &roles, &heating);
+    assert!(
+        alarms.iter().all(|a| a.level < Level::Critical),
+        "{alarms:?}"
+    );
 }

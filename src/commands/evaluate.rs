@@ -41,7 +41,11 @@ pub fn run(args: EvaluateArgs) -> anyhow::Result<i32> {
     }
     let mut labelled_sets: Vec<Set> = Vec::with_capacity(args.labels.len());
     for path in &args.labels {
-        labelled_sets.push(labelled::read(path, &Settings::default())?);
+        let mut set = labelled::read(path, &Settings::default())?;
+        if let Some(l) = args.min_lead {
+            set.min_lead = l;
+        }
+        labelled_sets.push(set);
     }
     let labelled_names = |name: &String| {
         labelled_sets
@@ -77,7 +81,7 @@ pub fn run(args: EvaluateArgs) -> anyhow::Result<i32> {
     let mut met = true;
     for (i, set) in sets.iter().enumerate() {
         let scored = evaluate::score_set(set)?;
-        met &= scored.totals().targets_met();
+        met &= scored.targets_met();
         if i > 0 {
             text.push('\n');
         }

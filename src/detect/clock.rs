@@ -150,6 +150,13 @@ impl Clock {
         self.arriving = Some(Arrivals { at_s, rows: 1 });
     }
 
+    /// Whether the steps per output are known from the file (a step counter,
+    /// or the time and a step size); when not, [`Self::steps_per_output`]
+    /// assumes one.
+    pub fn stride_known(&self) -> bool {
+        self.steps_per_row.is_some()
+    }
+
     /// Solver steps per output: known from the file, or 1 when it cannot tell.
     pub fn steps_per_output(&self) -> f64 {
         self.steps_per_row.filter(|k| *k >= 1.0).unwrap_or(1.0)

@@ -4,7 +4,7 @@
 //! exponentially — the signature of a numerical instability feeding energy
 //! into the model. A linear or decelerating drift stays a warning.
 
-use super::balance::{BalanceReading, EnergyBalance, term_name};
+use super::balance::{BalanceReading, EnergyBalance, describe_scale, term_name};
 use super::{DetectSettings, Detector, Sample, Shared, forecast};
 use crate::finding::{Evidence, Finding, Level};
 
@@ -25,8 +25,27 @@ const EXP_MIN_R2: f64 = 0.95;
 /// (ratio ≈ 1); a drift that started recently decelerates in log scale.
 const EXP_MIN_RATE_RATIO: f64 = 0.7;
 
+/// Energy created past this share of the energy scale (as it was before the
+/// balance went off) is a runaway once it also doubles faster and faster.
+const RUNAWAY_SHARE: f64 = 0.5;
+/// Successive doublings of the error looked at, newest first.
+const RUNAWAY_DOUBLINGS: usize = 3;
+/// Each doubling takes at most this many times the rows of the one before
+/// it: 1 for exponential growth, more than 1 for growth that speeds up,
+/// 2^(1/p)-type lengthening for growth as tᵖ (a load or a missing source
+/// taking hold from rest: p = 2 lengthens each doubling by √2). The margin
+/// allows for the rounding of doublings to whole rows.
+const RUNAWAY_SLOWDOWN: f64 = 1.12;
+/// Rows the balance must have been judged within its threshold before a
+/// runaway is judged against the scale of that stretch: a run whose balance
+/// is off from its first rows (an initial penetration released) has no
+/// scale of its own to be judged against.
+const RUNAWAY_REFERENCE_ROWS: u32 = 16;
+
 /// The energy-balance detector.
 pub struct Energy {
+    /// Column names, for messages.
+    names: Vec<String>,
     warn: f64,
     bound: f64,
     level: Level,
@@ -41,12 +60,21 @@ pub struct Energy {
     rate_per_row: Option<f64>,
     /// Growth and forecast read from the error's exponential rise, while it lasts.
     growth: Option<Evidence>,
+    /// The energy scale at the last row whose balance was within the
+    /// threshold: a runaway is judged against the run before it, not
+    /// against the energy it has itself created.
+    ref_scale: f64,
+    /// Rows judged within the threshold so far.
+    rows_within: u32,
+    /// Rows of the latest doubling of the error, while it runs away.
+    runaway_doubling: Option<f64>,
 }
 
 impl Energy {
     /// Detector for a segment with these roles.
-    pub fn new(settings: &DetectSettings) -> Self {
+    pub fn new(schema: &crate::parse::Schema, settings: &DetectSettings) -> Self {
         Self {
+            names: schema.columns.iter().map(|c| c.name.clone()).collect(),
             warn: settings.balance_warning,
             bound: settings.overflow_bound,
             level: Level::Ok,
@@ -58,6 +86,9 @@ impl Energy {
             last: None,
             rate_per_row: None,
             growth: None,
+            ref_scale: 0.0,
+            rows_within: 0,
+            runaway_doubling: None,
         }
     }
 
@@ -91,6 +122,48 @@ impl Energy {
             .reduce(f64::max)
     }
 
+    /// "Column "X" closes the balance as …" when a column with no role
+    /// would close it.
+    fn closing_sentence(&self, balance: Option<&EnergyBalance>) -> String {
+        let Some(c) = balance.and_then(EnergyBalance::closing) else {
+            return String::new();
+        };
+        let name = self
+            .names
+            .get(c.col)
+            .map_or_else(|| format!("{}", c.col + 1), |n| n.clone());
+        let role = match c.kind {
+            super::closure::ClosingKind::Dissipated => "dissipated",
+            super::closure::ClosingKind::Stored => "internal",
+            super::closure::ClosingKind::ExternalWork => "external_work",
+        };
+        format!(
+            " Column \"{name}\" closes the balance as {} (it explains {:.0} % of the error); if it is one, read it so with --role '{name}={role}'.",
+            c.kind.words(),
+            c.r2 * 100.0
+        )
+    }
+
+    /// The error's envelope doubled `RUNAWAY_DOUBLINGS` times in a row,
+    /// each doubling on rows of its own (no single jump carries two) and
+    /// none slower than `RUNAWAY_SLOWDOWN` times the one before: the rate
+    /// per row of the latest doubling and its rows.
+    fn runaway_rate(&self) -> Option<(f64, f64)> {
+        let cap = self.hist.len();
+        let now = self.hist[(self.rows - 1) % cap];
+        let back = |drop: f64| {
+            (1..self.rows.min(cap)).find(|&b| self.hist[(self.rows - 1 - b) % cap] <= now - drop)
+        };
+        let mut at = [0usize; RUNAWAY_DOUBLINGS + 1];
+        for (i, a) in at.iter_mut().enumerate().skip(1) {
+            *a = back(i as f64 * std::f64::consts::LN_2)?;
+        }
+        let rows: Vec<f64> = at.windows(2).map(|w| (w[1] - w[0]) as f64).collect();
+        let steady = rows.iter().all(|&d| d >= 1.0)
+            && rows.windows(2).all(|w| w[0] <= RUNAWAY_SLOWDOWN * w[1]);
+        steady.then(|| (std::f64::consts::LN_2 / rows[0], rows[0]))
+    }
+
     fn terms_sentence(balance: Option<&EnergyBalance>) -> String {
         let Some(b) = balance else {
             return String::new();
@@ -106,6 +179,14 @@ impl Energy {
                 missing.join(", ")
             )
         }
+    }
+}
+
+/// " Overflow in about N steps." when a forecast was made.
+fn forecast_words(ev: &Evidence) -> String {
+    match ev.forecast_steps {
+        Some(n) => format!(" Overflow in about {n:.0} solver steps."),
+        None => String::new(),
     }
 }
 
@@ -148,6 +229,10 @@ impl Detector for Energy {
             return;
         };
         let beyond = rel.abs() > self.warn;
+        if !beyond {
+            self.ref_scale = reading.scale;
+            self.rows_within = self.rows_within.saturating_add(1);
+        }
         if beyond {
             self.over += 1;
             self.under = 0;
@@ -156,13 +241,27 @@ impl Detector for Energy {
             self.over = 0;
         }
         // Exponential test only when the error matters (keeps healthy rows cheap).
-        self.rate_per_row = if beyond && rel > 0.0 && self.rows.is_multiple_of(4) {
+        self.rate_per_row = if beyond && rel > 0.0 && self.rows.is_multiple_of(2) {
             self.exponential_rate()
         } else if beyond && rel > 0.0 {
             self.rate_per_row
         } else {
             None
         };
+        // A runaway: energy created past a large share of the scale the run
+        // had before, doubling faster and faster (a particle run with too
+        // large a step may never print a NaN, and its solver may stop with
+        // its own error instead).
+        self.runaway_doubling = None;
+        if beyond
+            && rel > 0.0
+            && self.rows_within >= RUNAWAY_REFERENCE_ROWS
+            && reading.error > RUNAWAY_SHARE * self.ref_scale
+            && let Some((rate, half)) = self.runaway_rate()
+        {
+            self.rate_per_row = Some(self.rate_per_row.map_or(rate, |r| r.max(rate)));
+            self.runaway_doubling = Some(half);
+        }
         let time = clock.time;
         self.growth = None;
         let mut evidence = Evidence {
@@ -174,8 +273,18 @@ impl Detector for Energy {
         } else {
             "absorbed (−): energy is disappearing"
         };
+        // A column with no role that closes the balance explains the error:
+        // no evidence of energy created by the integration.
+        let explained = beyond
+            && self.rate_per_row.is_some()
+            && shared
+                .balance
+                .as_ref()
+                .and_then(EnergyBalance::closing)
+                .is_some();
         let new_level = if let Some(rate) = self.rate_per_row
             && self.over >= 1
+            && !explained
         {
             let k = clock.steps_per_output();
             // Energy ∝ amplitude², so amplitude grows by exp(rate/2) per output.
@@ -187,7 +296,7 @@ impl Detector for Energy {
             }
             forecast::fill(
                 &mut evidence,
-                reading.scale.sqrt(),
+                reading.magnitude.sqrt(),
                 rho_step,
                 self.bound.sqrt(),
                 clock,
@@ -210,18 +319,32 @@ impl Detector for Energy {
         );
         if new_level != self.level {
             let message = match new_level {
-                Level::Critical => format!(
-                    "Energy balance error {:+.1} % and growing exponentially: energy is created by the integration, a numerical instability.{}",
-                    rel * 100.0,
-                    Self::terms_sentence(shared.balance.as_ref())
-                ),
-                Level::Warning => format!(
-                    "Energy balance error {:+.1} % of the energy scale (threshold {:.1} %): {}.{}",
-                    rel * 100.0,
-                    self.warn * 100.0,
-                    word,
-                    Self::terms_sentence(shared.balance.as_ref())
-                ),
+                Level::Critical => match self.runaway_doubling {
+                    Some(half) => format!(
+                        "Runaway: the energy balance has gained {:.0} % of the energy scale the run had before ({:.4}; now {}), doubling faster and faster (last doubling in {half:.0} rows): energy is created by the integration, a numerical instability.{}{}",
+                        reading.error / self.ref_scale * 100.0,
+                        self.ref_scale,
+                        describe_scale(&reading, &self.names),
+                        forecast_words(&evidence),
+                        Self::terms_sentence(shared.balance.as_ref())
+                    ),
+                    None => format!(
+                        "Energy balance error {:+.1} % and growing exponentially: energy is created by the integration, a numerical instability.{}{}",
+                        rel * 100.0,
+                        forecast_words(&evidence),
+                        Self::terms_sentence(shared.balance.as_ref())
+                    ),
+                },
+                Level::Warning => {
+                    format!(
+                        "Energy balance error {:+.1} % of the energy scale ({}; threshold {:.1} %): {}.{}",
+                        rel * 100.0,
+                        describe_scale(&reading, &self.names),
+                        self.warn * 100.0,
+                        word,
+                        Self::terms_sentence(shared.balance.as_ref())
+                    ) + &self.closing_sentence(shared.balance.as_ref())
+                }
                 Level::Ok => format!(
                     "Energy balance back within {:.1} % ({:+.2} %).",
                     self.warn * 100.0,

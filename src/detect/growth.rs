@@ -22,6 +22,7 @@
 use nalgebra::Complex;
 
 use super::clock::Clock;
+use super::envelope::Envelope;
 use super::modes::{self, Analysis, GrowingMode};
 use super::{DetectSettings, Detector, Sample, Shared, Status, forecast};
 use crate::finding::{Evidence, Finding, Level, SuggestedDt};
@@ -38,6 +39,11 @@ const SHORT_FIT_MISFIT: f64 = 1e-3;
 const MIN_ROWS: usize = modes::MIN_FIT_ROWS;
 /// Rows between fits before the first model exists.
 const EMPTY_STRIDE: usize = 8;
+/// While the window is younger than `EARLY_ROWS` (a new segment, a restart,
+/// a step change), fits come every `EARLY_STRIDE` rows on short windows: an
+/// instability right after a restart may crash a few dozen rows later.
+const EARLY_ROWS: usize = 32;
+const EARLY_STRIDE: usize = 4;
 /// Rows between fits while a growing mode is being followed.
 const FOLLOW_STRIDE: usize = 8;
 /// Fits at the follow stride for a growing eigenvalue not judged numerical,
@@ -54,6 +60,44 @@ const MISFIT_WEIGHT: f64 = 0.125;
 /// Two growing eigenvalues closer than this fraction of their modulus are
 /// taken for the same mode, followed from fit to fit.
 const SAME_MODE: f64 = 0.1;
+/// Or growth rates (ln |μ|) within this factor of each other: a violent
+/// blow-up through contact or yielding is not one linear map, and its fitted
+/// eigenvalue wanders from fit to fit while it keeps growing.
+const SAME_RATE: f64 = 2.0;
+
+/// Whether two growing eigenvalues of successive fits are taken for one mode.
+fn same_mode(a: Complex<f64>, b: Complex<f64>) -> bool {
+    let (ra, rb) = (a.norm().ln(), b.norm().ln());
+    (a - b).norm() < SAME_MODE * b.norm()
+        || (ra > 0.0 && rb > 0.0 && ra.max(rb) <= SAME_RATE * ra.min(rb))
+}
+/// Rows before a second fit that must find a mode judged numerical again
+/// before it is called critical.
+const CONFIRM_STRIDE: usize = 2;
+/// A mode judged numerical must be found again within this many rows.
+const CONFIRM_WITHIN: u64 = 3 * FOLLOW_STRIDE as u64;
+/// A step size that changes by this factor from one row to the next starts a
+/// new window: the one-step map changes with the step.
+const STEP_CHANGE: f64 = 1.5;
+/// A mode carrying less than this share of the latest snapshot, growing no
+/// faster than `RIDING_RATIO` times the channels as a whole, grows with the
+/// motion (a nonlinear response fitted by a linear map) rather than against it.
+const RIDING_SHARE: f64 = 0.5;
+const RIDING_RATIO: f64 = 1.5;
+/// A mode followed over several fits that has grown to this many times the
+/// largest departure any fitted column made before its onset has outgrown
+/// the run's own response: no structure's physical response grows steadily
+/// by six decades past what it was already doing (common practice, no
+/// source).
+const OUTGROWN: f64 = 1e6;
+/// The response before the onset counts as established (the mode outgrew a
+/// motion, rather than being the first motion out of rest) when it was at
+/// least this share of the magnitude at which the mode was first seen.
+const ESTABLISHED: f64 = 1e-3;
+/// Fits that must follow one mode before it can be called outgrown.
+const OUTGROWN_FITS: u32 = 3;
+/// Phase within this of π (radians) counts as the negative real axis.
+const NEGATIVE_AXIS: f64 = 0.02;
 /// Fits without a growing mode before a raised critical clears.
 const QUIET_FITS_TO_CLEAR: u32 = 3;
 
@@ -109,7 +153,7 @@ pub struct Growth {
     balances: Vec<f64>,
     count: usize,
     balance_rel: Option<f64>,
-    /// The energy scale of the balance (running peak of the stored energy).
+    /// How large the written energies are (running peak of the stored sum).
     energy_scale: Option<f64>,
     bound: f64,
     /// Energy created beyond this fraction of the energy scale confirms that a
@@ -144,6 +188,22 @@ pub struct Growth {
     scratch: Vec<f64>,
     /// Latest raw values of the fitted columns.
     prev: Vec<f64>,
+    /// A mode judged numerical by one fit, waiting for the next to find it
+    /// again: its eigenvalue and the line of that fit.
+    candidate: Option<(Complex<f64>, u64)>,
+    /// Step size of the previous row, when the file writes one.
+    last_dt: Option<f64>,
+    /// A column with no role closes the balance: its error is no evidence.
+    balance_explained: bool,
+    /// Peak departure of each fitted column from its first value, by block
+    /// of lines: how large the run's response was before a mode's onset.
+    envelope: Envelope,
+    /// The fitted columns' values at the segment's first row.
+    origin: Option<Vec<f64>>,
+    /// The followed mode: fits that found it, and the largest departure of
+    /// the fitted columns when it was first found.
+    followed_fits: u32,
+    first_seen_departure: f64,
 }
 
 impl Growth {
@@ -189,6 +249,13 @@ impl Growth {
                 .and_then(|sc| Some((sc, critical_omega(&sc, 0.0).ok().flatten()?))),
             scratch: Vec::new(),
             prev: vec![0.0; m],
+            candidate: None,
+            last_dt: None,
+            balance_explained: false,
+            envelope: Envelope::new(m),
+            origin: None,
+            followed_fits: 0,
+            first_seen_departure: 0.0,
         }
     }
 
@@ -260,8 +327,21 @@ impl Growth {
         (FOLLOW_STRIDE << doublings).min(REFRESH_ROWS)
     }
 
+    /// Largest departure of the fitted columns from their first values, at
+    /// the latest row.
+    fn departure(&self) -> f64 {
+        let Some(origin) = &self.origin else {
+            return 0.0;
+        };
+        self.prev
+            .iter()
+            .zip(origin)
+            .fold(0.0_f64, |a, (v, o)| a.max((v - o).abs()))
+    }
+
     fn reset_window(&mut self) {
         self.latest = Evidence::default();
+        self.candidate = None;
         self.count = 0;
         self.moving = false;
         self.model = None;
@@ -286,7 +366,7 @@ impl Growth {
             return;
         };
         self.latest = self.estimate(&analysis, clock);
-        let mut growing = analysis.growing.map(|g| (g, n));
+        let mut growing = analysis.growing.map(|g| (g, n, analysis.signal_growth_ln));
         let candidate = analysis.spectral_radius.ln() * n as f64 > modes::MIN_WINDOW_GROWTH.ln();
         // Contact, yielding and other changes of regime make a long window
         // non-linear; a short recent window is still nearly linear.
@@ -295,8 +375,20 @@ impl Growth {
             && analysis.misfit_rms > SHORT_FIT_MISFIT * analysis.signal_rms
         {
             growing = modes::analyse(&self.scratch[(n - SHORT_ROWS) * m..], SHORT_ROWS, m)
-                .and_then(|a| a.growing)
-                .map(|g| (g, SHORT_ROWS));
+                .and_then(|a| a.growing.map(|g| (g, SHORT_ROWS, a.signal_growth_ln)));
+        }
+        // A small high-frequency mode under a large, slower (and often
+        // non-linear) response: the second difference of the outputs keeps
+        // every eigenvalue of a linear system (it is a fixed linear filter)
+        // while it scales a mode at phase θ per row by 2 − 2 cos θ — four at
+        // the sign-alternating end, (θ)² at the slow end.
+        if growing.is_none() && n >= MIN_ROWS + 2 {
+            let hp = second_difference(&self.scratch, n, m);
+            growing = modes::analyse(&hp, n - 2, m).and_then(|a| {
+                a.growing
+                    .filter(|g| g.mu.arg().abs() >= 0.5 * std::f64::consts::PI)
+                    .map(|g| (g, n - 2, a.signal_growth_ln))
+            });
         }
         // Seed the predictor with the newest snapshot of the window.
         let (q, d) = (analysis.map.q, analysis.map.d);
@@ -322,13 +414,15 @@ impl Growth {
             analysis,
         });
         match growing {
-            Some((g, n)) => self.judge(g, line, n, clock, out),
+            Some((g, n, signal)) => self.judge(g, line, n, signal, clock, out),
             None => {
                 // An eigenvalue that claims growth but failed its checks is
                 // looked at again soon, since it may be a mode still near the
                 // noise; less often once it keeps failing.
                 self.stride = if candidate {
                     self.backoff()
+                } else if n < EARLY_ROWS {
+                    EARLY_STRIDE
                 } else if n < WINDOW_ROWS {
                     // The window is still filling: each fit sees more.
                     EMPTY_STRIDE
@@ -338,6 +432,8 @@ impl Growth {
                 };
                 self.watch_balance = false;
                 self.followed = None;
+                self.followed_fits = 0;
+                self.candidate = None;
                 self.evidence = Evidence::default();
                 self.quiet_fits += 1;
                 if self.level > Level::Ok && self.quiet_fits >= QUIET_FITS_TO_CLEAR {
@@ -359,6 +455,7 @@ impl Growth {
         g: GrowingMode,
         line: u64,
         n: usize,
+        signal_growth_ln: f64,
         clock: &Clock,
         out: &mut Vec<Finding>,
     ) {
@@ -397,15 +494,20 @@ impl Growth {
         // While the same mode is followed (an eigenvalue close to the last
         // one), later windows no longer reach back to where it started: keep
         // the earliest onset seen.
-        let same_mode = self
-            .followed
-            .is_some_and(|m| (m - g.mu).norm() < SAME_MODE * g.mu.norm());
-        if same_mode
+        let same = self.followed.is_some_and(|m| same_mode(m, g.mu));
+        if same
             && let Some(prev) = self.evidence.onset_line
             && prev < onset.round() as u64
         {
             ev.onset_line = Some(prev);
             ev.onset_time = self.evidence.onset_time;
+        }
+        let departure = self.departure();
+        if same {
+            self.followed_fits += 1;
+        } else {
+            self.followed_fits = 1;
+            self.first_seen_departure = departure;
         }
         self.followed = Some(g.mu);
         // Forecast from the mode's present raw magnitude; energies grow as its
@@ -427,21 +529,68 @@ impl Growth {
             ),
             _ => forecast::fill(&mut ev, amplitude, rho_step, self.bound, clock),
         }
-        let sign_alternating = phase >= 0.75 * std::f64::consts::PI;
-        let above_quarter = k < 1.5 && phase >= 0.5 * std::f64::consts::PI;
+        // The phase per row tells a numerical mode only when every step is
+        // written: output every k steps (or an unknown stride) aliases a
+        // physical mode to any phase. Then only an eigenvalue on the negative
+        // real axis — a sign flip every row, as the explicit schemes' mode
+        // shows at an odd stride — is taken for one.
+        let every_step = clock.stride_known() && k < 1.5;
+        let sign_alternating = if every_step {
+            phase >= 0.75 * std::f64::consts::PI
+        } else {
+            phase >= std::f64::consts::PI - NEGATIVE_AXIS
+        };
+        let above_quarter = every_step && phase >= 0.5 * std::f64::consts::PI;
         // Energy created while the mode grew: the balance error rose by the
-        // confirmation threshold over the fitted window (a constant offset, such
-        // as an initial penetration, does not count).
-        let before = self.balances[first % WINDOW_ROWS];
+        // confirmation threshold since the mode stood at its noise floor (a
+        // constant offset, such as an initial penetration, or an error the
+        // run already had before the mode appeared, does not count).
+        let back_rows = (back.min((n - 1) as f64)) as usize;
+        let before = self.balances[(last - back_rows) % WINDOW_ROWS];
         let before = if before.is_finite() { before } else { 0.0 };
-        let created = self
+        let created = !self.balance_explained
+            && self
+                .balance_rel
+                .is_some_and(|r| r > self.energy_confirm && r - before > self.energy_confirm);
+        // A small mode growing no faster than the motion as a whole is part
+        // of that motion (a snap-through, a load taking hold), whatever its
+        // frequency.
+        let riding = g.share < RIDING_SHARE
+            && signal_growth_ln > 0.0
+            && rho_out.ln() <= RIDING_RATIO * signal_growth_ln;
+        // A mode followed over several fits that has outgrown, by decades,
+        // a response the run had established before it: growth with no
+        // physical end, whatever its phase (output every k steps aliases
+        // the sign-alternating mode of an explicit scheme to any phase).
+        // A balance that is written and closes vetoes it.
+        let before = ev
+            .onset_line
+            .and_then(|l| self.envelope.peaks_before(l))
+            .map_or(0.0, |p| p.into_iter().fold(0.0, f64::max));
+        let balance_closes = self
             .balance_rel
-            .is_some_and(|r| r > self.energy_confirm && r - before > self.energy_confirm);
-        let numerical = sign_alternating || above_quarter || created;
+            .is_some_and(|r| r.abs() < self.energy_confirm);
+        let outgrown = self.followed_fits >= OUTGROWN_FITS
+            && before > 0.0
+            && before >= ESTABLISHED * self.first_seen_departure
+            && departure >= OUTGROWN * before
+            && !balance_closes;
+        let numerical = (sign_alternating || above_quarter || created || outgrown) && !riding;
+        // A mode judged numerical must hold its eigenvalue over two fits a
+        // few rows apart: a transient that a linear fit follows with a
+        // growing eigenvalue does not.
+        let confirmed = numerical
+            && self
+                .candidate
+                .is_some_and(|(mu, at)| same_mode(mu, g.mu) && line - at <= CONFIRM_WITHIN);
+        self.candidate = numerical.then_some((g.mu, line));
         // A mode judged numerical is followed closely; one that may be
         // physical less often each time, until energy is created (a per-row
         // trigger, see `feed`).
-        self.stride = if numerical {
+        self.stride = if numerical && !confirmed && self.level < Level::Critical {
+            self.unconfirmed = 0;
+            CONFIRM_STRIDE
+        } else if numerical {
             self.unconfirmed = 0;
             FOLLOW_STRIDE
         } else {
@@ -449,7 +598,7 @@ impl Growth {
         };
         self.watch_balance = !numerical;
         self.evidence = ev.clone();
-        if numerical && self.level < Level::Critical {
+        if confirmed && self.level < Level::Critical {
             self.level = Level::Critical;
             out.push(Finding {
                 level: Level::Critical,
@@ -458,8 +607,13 @@ impl Growth {
                 message: critical_message(
                     &ev,
                     k,
-                    sign_alternating,
-                    created,
+                    clock.stride_known(),
+                    Signature {
+                        alternating: sign_alternating,
+                        created,
+                        outgrown: (outgrown && !sign_alternating && !above_quarter)
+                            .then_some(departure / before),
+                    },
                     remedy.map(|r| (r, self.first_time)),
                 ),
                 evidence: ev,
@@ -468,25 +622,55 @@ impl Growth {
     }
 }
 
+/// Rows `n` × `m` (row-major) → their second differences, `n − 2` rows.
+fn second_difference(rows: &[f64], n: usize, m: usize) -> Vec<f64> {
+    (2..n)
+        .flat_map(|i| {
+            (0..m)
+                .map(move |j| rows[i * m + j] - 2.0 * rows[(i - 1) * m + j] + rows[(i - 2) * m + j])
+        })
+        .collect()
+}
+
+/// What made a growing mode numerical.
+struct Signature {
+    alternating: bool,
+    created: bool,
+    /// The mode's growth past the response the run had before it.
+    outgrown: Option<f64>,
+}
+
 fn critical_message(
     ev: &Evidence,
     k: f64,
-    alternating: bool,
-    created: bool,
+    stride_known: bool,
+    sig: Signature,
     remedy: Option<(String, Option<f64>)>,
 ) -> String {
     let mut s = String::from("Numerical instability: ");
-    s += if alternating {
+    s += if sig.alternating {
         "a sign-alternating mode"
+    } else if sig.outgrown.is_some() {
+        "a mode"
     } else {
         "an oscillating mode"
     };
-    if let Some(r) = ev.growth_per_step {
-        s += &format!(" grows ×{r:.4} per solver step");
+    if stride_known {
+        if let Some(r) = ev.growth_per_step {
+            s += &format!(" grows ×{r:.4} per solver step");
+        }
+        if k > 1.5 {
+            s += &format!(" (about {k:.0} steps per output)");
+        }
+    } else if let Some(r) = ev.growth_per_output {
+        s += &format!(
+            " grows ×{r:.4} per output row (the file does not say how many solver steps a row is)"
+        );
     }
-    if k > 1.5 {
-        s += &format!(" (about {k:.0} steps per output)");
+    if let Some(x) = sig.outgrown {
+        s += &format!(", steadily, to {x:.1e} times the largest response the run wrote before it");
     }
+    let created = sig.created;
     if created {
         s += " while the energy balance shows energy created";
     }
@@ -534,11 +718,31 @@ impl Detector for Growth {
         }
         if let Some(r) = shared.reading {
             self.balance_rel = r.relative;
-            self.energy_scale = Some(r.scale).filter(|e| *e > 0.0);
+            // Looked for only while the balance is off (it costs a pass over
+            // the unassigned columns).
+            self.balance_explained = r.relative.is_some_and(|v| v > self.energy_confirm)
+                && shared
+                    .balance
+                    .as_ref()
+                    .and_then(super::balance::EnergyBalance::closing)
+                    .is_some();
+            self.energy_scale = Some(r.magnitude).filter(|e| *e > 0.0);
         }
         let m = self.cols.len();
         if m == 0 {
             return;
+        }
+        // A new step size starts a new window (the map changes with it).
+        if let Some(dt) =
+            super::finite_at(sample.values, shared.clock.dt_col()).filter(|h| *h > 0.0)
+        {
+            if self
+                .last_dt
+                .is_some_and(|h0| (dt / h0).max(h0 / dt) >= STEP_CHANGE)
+            {
+                self.reset_window();
+            }
+            self.last_dt = Some(dt);
         }
         // Runs often start at exact rest: a window of rest followed by the
         // first motion is a step, not a free response, so the window starts
@@ -565,6 +769,11 @@ impl Detector for Growth {
             self.data[p * m + k] = v;
             self.prev[k] = v;
         }
+        let origin = self.origin.get_or_insert_with(|| self.prev.clone());
+        self.scratch.clear();
+        self.scratch
+            .extend(self.prev.iter().zip(origin.iter()).map(|(v, o)| v - o));
+        self.envelope.push(sample.line, &self.scratch);
         self.lines[p] = sample.line;
         self.balances[p] = self.balance_rel.unwrap_or(f64::NAN);
         self.count += 1;
@@ -581,6 +790,7 @@ impl Detector for Growth {
             return;
         }
         let due = match &self.model {
+            None if n < EARLY_ROWS => self.since_fit >= EARLY_STRIDE,
             None => self.since_fit >= EMPTY_STRIDE,
             Some(_) => self.since_fit >= self.stride,
         };

@@ -10,7 +10,9 @@
 
 pub mod balance;
 pub mod clock;
+pub mod closure;
 pub mod energy;
+pub mod envelope;
 pub mod forecast;
 pub mod growth;
 pub mod modes;
@@ -147,7 +149,7 @@ impl Engine {
         let detectors: Vec<Box<dyn Detector + Send>> = vec![
             Box::new(nonfinite::NonFinite::new(schema, roles)),
             Box::new(growth::Growth::new(roles, settings)),
-            Box::new(energy::Energy::new(settings)),
+            Box::new(energy::Energy::new(schema, settings)),
             Box::new(solver::Solver::new(roles)),
             Box::new(step::StepSize::new(roles)),
         ];

@@ -12,12 +12,18 @@ use crate::schemes::fit;
 
 /// Target dimension of the delay-embedded snapshot (channels × delays).
 pub const EMBED_DIM: usize = 12;
-/// Fewest rows a fit accepts.
-pub const MIN_FIT_ROWS: usize = 16;
+/// Fewest rows a fit accepts (a short window right after a restart or a
+/// step change; it is fitted with fewer channels and delays).
+pub const MIN_FIT_ROWS: usize = 8;
+/// Snapshots per dimension of the embedding a fit keeps at least.
+const SNAPSHOTS_PER_DIM: usize = 3;
 /// At most this many channels; more columns are mixed down.
 pub const MAX_CHANNELS: usize = 3;
 /// A growing mode must grow at least this much over the window.
 pub const MIN_WINDOW_GROWTH: f64 = 4.0;
+/// Growth over the rows it is seen above its misfit that makes two or three
+/// rows enough to judge a mode.
+const VIOLENT_GROWTH: f64 = 1e6;
 /// Its latest amplitude must stand this far above its one-step misfit.
 pub const MIN_SNR: f64 = 20.0;
 
@@ -48,8 +54,8 @@ pub struct ChannelMap {
 impl ChannelMap {
     /// The map for these active columns, `q` channels and `d` delays.
     pub fn new(cols: Vec<(usize, f64, f64)>, q: usize, d: usize) -> Self {
-        debug_assert!(q == cols.len().min(MAX_CHANNELS));
-        let gains = if cols.len() <= MAX_CHANNELS {
+        debug_assert!((1..=cols.len().min(MAX_CHANNELS)).contains(&q));
+        let gains = if cols.len() == q {
             Vec::new()
         } else {
             cols.iter()
@@ -67,15 +73,16 @@ impl ChannelMap {
             }
             return;
         }
-        // Mixed down to exactly MAX_CHANNELS: sums kept in registers.
+        // Mixed down to q ≤ MAX_CHANNELS channels: sums kept in registers.
+        let q = self.q;
         let mut acc = [0.0; MAX_CHANNELS];
-        for (g, &(j, mean, _)) in self.gains.chunks_exact(MAX_CHANNELS).zip(&self.cols) {
+        for (g, &(j, mean, _)) in self.gains.chunks_exact(q).zip(&self.cols) {
             let x = row[j] - mean;
             for (a, w) in acc.iter_mut().zip(g) {
                 *a += w * x;
             }
         }
-        out[..MAX_CHANNELS].copy_from_slice(&acc);
+        out[..q].copy_from_slice(&acc[..q]);
     }
 }
 
@@ -107,6 +114,9 @@ pub struct Analysis {
     /// The strongest growing mode that passed its checks.
     pub growing: Option<GrowingMode>,
     pub rank: usize,
+    /// Growth per row of the channels as a whole: ln of the RMS of the
+    /// window's last quarter over its first quarter, per row between them.
+    pub signal_growth_ln: f64,
 }
 
 /// Fit a window: `rows` is row-major, `n` rows of `m` values, oldest first.
@@ -138,10 +148,18 @@ pub fn analyse(rows: &[f64], n: usize, m: usize) -> Option<Analysis> {
     if cols.is_empty() {
         return None;
     }
-    let q = cols.len().min(MAX_CHANNELS);
-    // Short windows get fewer delays, so that the fit keeps at least three
-    // snapshots per dimension of the embedding.
-    let d = EMBED_DIM.div_ceil(q).min(n / (3 * q)).max(2);
+    // Short windows get fewer channels and delays, so that the fit keeps at
+    // least three snapshots per dimension of the embedding (two delays at
+    // least: one channel then still holds an oscillating pair).
+    let q = cols
+        .len()
+        .min(MAX_CHANNELS)
+        .min(n / (SNAPSHOTS_PER_DIM * 2 + 2))
+        .max(1);
+    let d = EMBED_DIM
+        .div_ceil(q)
+        .min(n / (SNAPSHOTS_PER_DIM * q + 1))
+        .max(2);
     let map = ChannelMap::new(cols, q, d);
     let mut y = vec![0.0; n * q];
     for i in 0..n {
@@ -174,6 +192,14 @@ pub fn analyse(rows: &[f64], n: usize, m: usize) -> Option<Analysis> {
         .unwrap_or_default();
     let spectral_radius = dominant.norm();
     let growing = strongest_growing(&f, &h);
+    let quarter = (n / 4).max(1);
+    let rms = |rows: &[f64]| (rows.iter().map(|v| v * v).sum::<f64>() / rows.len() as f64).sqrt();
+    let (early, late) = (rms(&y[..quarter * q]), rms(&y[(n - quarter) * q..]));
+    let signal_growth_ln = if early > 0.0 && late > 0.0 {
+        (late / early).ln() / (n - quarter) as f64
+    } else {
+        0.0
+    };
     Some(Analysis {
         map,
         predictor,
@@ -183,6 +209,7 @@ pub fn analyse(rows: &[f64], n: usize, m: usize) -> Option<Analysis> {
         dominant,
         growing,
         rank: f.rank,
+        signal_growth_ln,
     })
 }
 
@@ -228,11 +255,23 @@ fn strongest_growing(f: &fit::DmdFit, h: &DMatrix<f64>) -> Option<GrowingMode> {
             .position(|v| v.norm() > 3.0 * misfit)
             .unwrap_or(n - 1);
         let seen = n - 1 - start;
-        if seen < 4 {
+        let grew = (end / a[start].norm()).ln();
+        // Four rows above the misfit, or fewer when they span decades (a
+        // violent mode leaves the rounding of its own latest values behind
+        // within a row or two).
+        if seen < 4 && (seen < 2 || grew < VIOLENT_GROWTH.ln()) {
             continue;
         }
-        let grew = (end / a[start].norm()).ln();
         if grew < 0.5 * mu.norm().ln() * seen as f64 || grew < MIN_WINDOW_GROWTH.ln() * 0.5 {
+            continue;
+        }
+        // A growing mode is at its largest now: an amplitude that rose and
+        // fell again within the window (a contact spike, a transient the
+        // linear fit could only follow with a growing eigenvalue) is not one.
+        let recent = (seen / 4).max(2);
+        let peak = a[start..].iter().map(|v| v.norm()).fold(0.0, f64::max);
+        let late = a[n - recent..].iter().map(|v| v.norm()).fold(0.0, f64::max);
+        if late < 0.5 * peak {
             continue;
         }
         let share = mode_share(f, mu, &psi, a[n - 1], last);

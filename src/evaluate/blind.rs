@@ -56,6 +56,7 @@ pub fn set(filter: Filter) -> anyhow::Result<Set> {
             .into(),
         settings: Settings::default(),
         cases,
+        min_lead: super::score::MIN_LEAD,
     })
 }
 
@@ -148,6 +149,7 @@ mod tests {
         let scored = SetScore {
             name: BLIND.into(),
             title: String::new(),
+            min_lead: crate::evaluate::score::MIN_LEAD,
             cases: vec![
                 score("collapse-crushed-bar", blow, &[]),
                 score("cut-contact-implicit", calm, &[]),

@@ -50,6 +50,7 @@ pub fn catalogue(filter: Filter) -> anyhow::Result<Set> {
         title: "Demo catalogue".into(),
         settings: Settings::default(),
         cases,
+        min_lead: super::score::MIN_LEAD,
     })
 }
 
@@ -91,5 +92,6 @@ pub fn variants(filter: Filter) -> anyhow::Result<Set> {
         title: "Variants (output interval ×2, ×3; other noise seeds)".into(),
         settings: Settings::default(),
         cases,
+        min_lead: super::score::MIN_LEAD,
     })
 }

@@ -108,6 +108,7 @@ pub fn read(path: &Path, settings: &Settings) -> anyhow::Result<Set> {
         title: format!("Labelled runs in {}", path.display()),
         settings: settings.clone(),
         cases,
+        min_lead: super::score::MIN_LEAD,
     })
 }
 

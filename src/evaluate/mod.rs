@@ -54,6 +54,8 @@ pub struct Set {
     /// How the histories are read (roles, thresholds, a declared scheme).
     pub settings: Settings,
     pub cases: Vec<Case>,
+    /// The median lead this set is held to (`score::MIN_LEAD` unless said).
+    pub min_lead: f64,
 }
 
 /// Which cases to build: `None` for all, else the names asked for (a name
@@ -115,6 +117,8 @@ pub struct SetScore {
     pub name: String,
     pub title: String,
     pub cases: Vec<CaseScore>,
+    /// The median lead the set is held to.
+    pub min_lead: f64,
 }
 
 impl SetScore {
@@ -125,7 +129,16 @@ impl SetScore {
 
     /// The title, the table and the totals as plain text.
     pub fn text(&self) -> String {
-        format!("{}:\n{}", self.title, score::table(&self.cases))
+        format!(
+            "{}:\n{}",
+            self.title,
+            score::table(&self.cases, self.min_lead)
+        )
+    }
+
+    /// Whether the set meets its targets.
+    pub fn targets_met(&self) -> bool {
+        self.totals().targets_met(self.min_lead)
     }
 }
 
@@ -155,6 +168,7 @@ pub fn score_set(set: &Set) -> anyhow::Result<SetScore> {
         name: set.name.clone(),
         title: set.title.clone(),
         cases,
+        min_lead: set.min_lead,
     })
 }
 
@@ -188,6 +202,7 @@ mod tests {
             name: "t".into(),
             title: "two hand-written histories".into(),
             settings: Settings::default(),
+            min_lead: score::MIN_LEAD,
             cases: vec![
                 Case {
                     name: "nan".into(),
@@ -221,6 +236,7 @@ mod tests {
             name: "t".into(),
             title: String::new(),
             settings: Settings::default(),
+            min_lead: score::MIN_LEAD,
             cases: vec![Case {
                 name: "gone".into(),
                 input: Input::Path("/nonexistent/rhoscope-case.csv".into()),

@@ -1,9 +1,12 @@
 //! Scoring of one labelled history: the level expected and the level raised,
 //! the first alarm line and the lead (crash line − first critical line) /
 //! (crash line − onset line); over a set of cases, blow-ups detected before
-//! their crash line, false critical alarms, healthy cases warned, drift cases
-//! warned, and the median lead. Pure: it is given labels and alarms, and runs
-//! nothing.
+//! their crash line, blow-ups called critical before their onset, false
+//! critical alarms, healthy cases warned, drift cases warned, and the median
+//! lead, against the targets: every blow-up caught before its crash and none
+//! before its onset, no healthy run critical or warned, every drift warned
+//! and none critical, and a median lead of at least the set's target. Pure:
+//! it is given labels and alarms, and runs nothing.
 
 use crate::alarm::Alarm;
 use crate::finding::Level;
@@ -34,6 +37,8 @@ pub struct CaseScore {
     pub lead: Option<f64>,
     /// Blow-up with a critical alarm before its crash line.
     pub detected: bool,
+    /// Blow-up whose first critical alarm comes before its onset line.
+    pub early: bool,
     /// A critical alarm on a case not labelled critical.
     pub false_critical: bool,
 }
@@ -44,7 +49,7 @@ pub fn score(name: &str, expected: Label, alarms: &[Alarm]) -> CaseScore {
     let wanted = expected.level.max(Level::Warning);
     let first = alarms.iter().find(|a| a.level >= wanted);
     let first_crit = alarms.iter().find(|a| a.level == Level::Critical);
-    let (mut lead, mut detected) = (None, false);
+    let (mut lead, mut detected, mut early) = (None, false, false);
     if expected.level == Level::Critical {
         // Before the crash line; when nothing announces the crash (onset on the
         // crash line itself, as a NaN out of nowhere), on that line.
@@ -56,6 +61,9 @@ pub fn score(name: &str, expected: Label, alarms: &[Alarm]) -> CaseScore {
                 .is_none_or(|c| l < c || (unannounced && l == c))
         };
         detected = first_crit.is_some_and(|a| before_crash(a.line));
+        early = first_crit
+            .zip(expected.onset_line)
+            .is_some_and(|(a, o)| a.line < o);
         if let (Some(c), Some(o), Some(a)) = (expected.crash_line, expected.onset_line, first_crit)
             && c > o
         {
@@ -74,6 +82,7 @@ pub fn score(name: &str, expected: Label, alarms: &[Alarm]) -> CaseScore {
         first_alarm_detector: first.map(|a| a.detector),
         lead,
         detected,
+        early,
         false_critical: expected.level < Level::Critical && got == Level::Critical,
     }
 }
@@ -83,6 +92,8 @@ pub fn score(name: &str, expected: Label, alarms: &[Alarm]) -> CaseScore {
 pub struct Totals {
     pub blowups: usize,
     pub detected: usize,
+    /// Blow-ups called critical before their onset.
+    pub early: usize,
     pub false_critical: usize,
     pub healthy: usize,
     pub healthy_warned: usize,
@@ -106,6 +117,7 @@ impl Totals {
         Totals {
             blowups: by(Level::Critical).count(),
             detected: by(Level::Critical).filter(|c| c.detected).count(),
+            early: by(Level::Critical).filter(|c| c.early).count(),
             false_critical: cases.iter().filter(|c| c.false_critical).count(),
             healthy: by(Level::Ok).count(),
             healthy_warned: by(Level::Ok).filter(|c| c.got >= Level::Warning).count(),
@@ -117,19 +129,24 @@ impl Totals {
         }
     }
 
-    /// The targets: every blow-up detected before its crash, no false critical,
-    /// at most one healthy case warned, every drift case warned, median lead ≥ 0.95.
-    pub fn targets_met(&self) -> bool {
+    /// The targets: every blow-up detected before its crash and none called
+    /// critical before its onset, no false critical, no healthy case warned,
+    /// every drift case warned, median lead ≥ `min_lead`.
+    pub fn targets_met(&self, min_lead: f64) -> bool {
         self.detected == self.blowups
+            && self.early == 0
             && self.false_critical == 0
-            && self.healthy_warned <= 1
+            && self.healthy_warned == 0
             && self.drifts_warned == self.drifts
-            && self.median_lead.is_none_or(|m| m >= 0.95)
+            && self.median_lead.is_none_or(|m| m >= min_lead)
     }
 }
 
-/// The table and totals as plain text.
-pub fn table(cases: &[CaseScore]) -> String {
+/// The median lead a set is held to unless it says otherwise.
+pub const MIN_LEAD: f64 = 0.95;
+
+/// The table and totals as plain text, against a median lead of `min_lead`.
+pub fn table(cases: &[CaseScore], min_lead: f64) -> String {
     let opt = |v: Option<u64>| v.map_or("-".to_string(), |v| v.to_string());
     // The case column fits the longest name (files of a labelled directory
     // are often longer than the catalogue's names).
@@ -156,16 +173,17 @@ pub fn table(cases: &[CaseScore]) -> String {
     }
     let t = Totals::of(cases);
     s += &format!(
-        "\nblow-ups detected before crash: {}/{}\nfalse critical alarms: {}\nhealthy cases warned: {}/{}\ndrift cases warned: {}/{}\nmedian lead: {}\ntargets met: {}\n",
+        "\nblow-ups detected before crash: {}/{}\nblow-ups called before onset: {}\nfalse critical alarms: {}\nhealthy cases warned: {}/{}\ndrift cases warned: {}/{}\nmedian lead: {} (target {min_lead:.2})\ntargets met: {}\n",
         t.detected,
         t.blowups,
+        t.early,
         t.false_critical,
         t.healthy_warned,
         t.healthy,
         t.drifts_warned,
         t.drifts,
         t.median_lead.map_or("-".to_string(), |m| format!("{m:.3}")),
-        if t.targets_met() { "yes" } else { "no" }
+        if t.targets_met(min_lead) { "yes" } else { "no" }
     );
     s
 }
@@ -206,8 +224,16 @@ mod tests {
             crash_line: None,
         };
         let h = score("b", ok, &[alarm(Level::Warning, 5)]);
-        let t = Totals::of(&[c, h]);
+        let t = Totals::of(&[c.clone(), h]);
         assert_eq!((t.detected, t.healthy_warned, t.false_critical), (1, 1, 0));
-        assert!(t.targets_met());
+        // A healthy run warned misses the targets.
+        assert!(!t.targets_met(MIN_LEAD));
+        assert!(Totals::of(std::slice::from_ref(&c)).targets_met(MIN_LEAD));
+        // A critical before the onset line is counted, and misses them.
+        let e = score("e", blow, &[alarm(Level::Critical, 99)]);
+        assert!(e.early && e.detected);
+        let t = Totals::of(&[e]);
+        assert_eq!(t.early, 1);
+        assert!(!t.targets_met(MIN_LEAD));
     }
 }
