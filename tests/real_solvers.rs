@@ -14,6 +14,7 @@
 //! with a message; elsewhere they are skipped with a printed notice. `.ci/run`
 //! installs the packages.
 
+mod detection;
 mod reading;
 
 use std::path::{Path, PathBuf};
