@@ -303,3 +303,28 @@ fn mode_share(
         0.0
     }
 }
+
+/// Two growing eigenvalues closer than this fraction of their modulus are
+/// taken for the same mode, followed from fit to fit.
+const SAME_MODE: f64 = 0.1;
+/// Or growth rates (ln |μ|) within this factor of each other: a violent
+/// blow-up through contact or yielding is not one linear map, and its fitted
+/// eigenvalue wanders from fit to fit while it keeps growing.
+const SAME_RATE: f64 = 2.0;
+
+/// Whether two growing eigenvalues of successive fits are taken for one mode.
+pub fn same_mode(a: Complex<f64>, b: Complex<f64>) -> bool {
+    let (ra, rb) = (a.norm().ln(), b.norm().ln());
+    (a - b).norm() < SAME_MODE * b.norm()
+        || (ra > 0.0 && rb > 0.0 && ra.max(rb) <= SAME_RATE * ra.min(rb))
+}
+
+/// Rows `n` × `m` (row-major) → their second differences, `n − 2` rows.
+pub fn second_difference(rows: &[f64], n: usize, m: usize) -> Vec<f64> {
+    (2..n)
+        .flat_map(|i| {
+            (0..m)
+                .map(move |j| rows[i * m + j] - 2.0 * rows[(i - 1) * m + j] + rows[(i - 2) * m + j])
+        })
+        .collect()
+}

@@ -19,15 +19,22 @@
 //! integrator resolves (sign-alternating per output, or above a quarter cycle
 //! per step), or energy being created while the mode grows.
 
+mod evidence;
+mod predictor;
+mod words;
+
 use nalgebra::Complex;
 
+use self::evidence::Declared;
+use self::predictor::Model;
+use self::words::{Signature, critical_message};
 use super::clock::Clock;
 use super::envelope::Envelope;
-use super::modes::{self, Analysis, GrowingMode};
+use super::modes::{self, GrowingMode};
 use super::{DetectSettings, Detector, Sample, Shared, Status, forecast};
-use crate::finding::{Evidence, Finding, Level, SuggestedDt};
+use crate::finding::{Evidence, Finding, Level};
 use crate::parse::roles::{Role, RoleMap};
-use crate::schemes::{Scheme, critical_omega, omega_at_phase, omega_at_radius, remedy};
+use crate::schemes::critical_omega;
 
 /// Window length in outputs (≥ 3× model order; 200 samples suit ranks 3–6).
 pub const WINDOW_ROWS: usize = 200;
@@ -53,24 +60,6 @@ const FITS_BEFORE_BACKOFF: u32 = 2;
 const REFRESH_ROWS: usize = 16 * WINDOW_ROWS;
 /// Fewest rows between a fit and one called by a per-row trigger.
 const TRIGGER_GAP: usize = 4;
-/// Refit when the RMS one-step misfit exceeds this multiple of the fit's own.
-const TRIGGER_RATIO: f64 = 4.0;
-/// Weight of the newest row in the misfit average.
-const MISFIT_WEIGHT: f64 = 0.125;
-/// Two growing eigenvalues closer than this fraction of their modulus are
-/// taken for the same mode, followed from fit to fit.
-const SAME_MODE: f64 = 0.1;
-/// Or growth rates (ln |μ|) within this factor of each other: a violent
-/// blow-up through contact or yielding is not one linear map, and its fitted
-/// eigenvalue wanders from fit to fit while it keeps growing.
-const SAME_RATE: f64 = 2.0;
-
-/// Whether two growing eigenvalues of successive fits are taken for one mode.
-fn same_mode(a: Complex<f64>, b: Complex<f64>) -> bool {
-    let (ra, rb) = (a.norm().ln(), b.norm().ln());
-    (a - b).norm() < SAME_MODE * b.norm()
-        || (ra > 0.0 && rb > 0.0 && ra.max(rb) <= SAME_RATE * ra.min(rb))
-}
 /// Rows before a second fit that must find a mode judged numerical again
 /// before it is called critical.
 const CONFIRM_STRIDE: usize = 2;
@@ -100,49 +89,6 @@ const OUTGROWN_FITS: u32 = 3;
 const NEGATIVE_AXIS: f64 = 0.02;
 /// Fits without a growing mode before a raised critical clears.
 const QUIET_FITS_TO_CLEAR: u32 = 3;
-
-/// Per-row predictor of the last fit, for the refit trigger.
-struct Model {
-    analysis: Analysis,
-    /// The last `d` channel vectors, a ring of `d` slots of `q` values.
-    snap: Vec<f64>,
-    /// Slot of the newest channel vector.
-    head: usize,
-    misfit2: f64,
-    base2: f64,
-    y: Vec<f64>,
-}
-
-impl Model {
-    /// Update the per-row predictor; returns true when the misfit calls for a refit.
-    fn track(&mut self, row: &[f64]) -> bool {
-        let (q, d) = (self.analysis.map.q, self.analysis.map.d);
-        let mut y = std::mem::take(&mut self.y);
-        self.analysis.map.channels(row, &mut y);
-        // The predictor is column-major: columns lag·q .. lag·q + q hold the
-        // gains of the channel vector `lag` rows back. The prediction error
-        // is accumulated in place.
-        let p = self.analysis.predictor.as_slice();
-        let mut err = [0.0; modes::MAX_CHANNELS];
-        err[..q].copy_from_slice(&y);
-        let mut slot = self.head;
-        for gains in p.chunks_exact(q * q) {
-            let s = &self.snap[slot * q..(slot + 1) * q];
-            for (g, sv) in gains.chunks_exact(q).zip(s) {
-                for (e, gv) in err.iter_mut().zip(g) {
-                    *e -= gv * sv;
-                }
-            }
-            slot = if slot == 0 { d - 1 } else { slot - 1 };
-        }
-        let e2: f64 = err[..q].iter().map(|e| e * e).sum();
-        self.misfit2 += MISFIT_WEIGHT * (e2 / q as f64 - self.misfit2);
-        self.head = if self.head + 1 == d { 0 } else { self.head + 1 };
-        self.snap[self.head * q..(self.head + 1) * q].copy_from_slice(&y);
-        self.y = y;
-        self.misfit2 > TRIGGER_RATIO * TRIGGER_RATIO * self.base2
-    }
-}
 
 /// The growth detector.
 pub struct Growth {
@@ -184,7 +130,7 @@ pub struct Growth {
     /// Eigenvalue of the growing mode last judged.
     followed: Option<Complex<f64>>,
     /// Declared scheme and its stability limit Ω_crit (undamped).
-    scheme: Option<(Scheme, f64)>,
+    scheme: Option<Declared>,
     scratch: Vec<f64>,
     /// Latest raw values of the fitted columns.
     prev: Vec<f64>,
@@ -259,66 +205,6 @@ impl Growth {
         }
     }
 
-    /// What the latest fit says whether or not a mode grows: the spectral
-    /// radius per output and per step, the frequency of the dominant
-    /// eigenvalue and, with a declared scheme and output every step, the
-    /// stability margin at that frequency (the phase per step is aliased
-    /// when several steps pass between outputs, so no margin is read then).
-    fn estimate(&self, a: &Analysis, clock: &Clock) -> Evidence {
-        let k = clock.steps_per_output();
-        let rho = a.spectral_radius;
-        let mut ev = Evidence {
-            growth_per_output: Some(rho),
-            growth_per_step: Some(rho.powf(1.0 / k)),
-            ..Evidence::default()
-        };
-        if let Some(tpr) = clock.time_per_row.filter(|v| *v > 0.0) {
-            ev.growth_rate_per_s = Some(rho.ln() / tpr);
-            ev.frequency_hz = Some(a.dominant.arg() / (2.0 * std::f64::consts::PI) / tpr);
-        }
-        if let Some((scheme, oc)) = &self.scheme
-            && k < 1.5
-        {
-            ev.stability_margin = omega_at_phase(scheme, a.dominant.arg(), 0.0, *oc)
-                .ok()
-                .flatten()
-                .filter(|w| *w > 0.0)
-                .map(|w| oc / w - 1.0);
-        }
-        ev
-    }
-
-    /// Stability margin of a mode growing by `rho_step` per step: where the
-    /// declared scheme has that spectral radius, past its limit (negative).
-    fn margin_of_growth(&self, rho_step: f64) -> Option<f64> {
-        let (scheme, oc) = self.scheme.as_ref()?;
-        let omega = omega_at_radius(scheme, rho_step, 0.0, *oc).ok().flatten()?;
-        (omega > 0.0).then(|| oc / omega - 1.0)
-    }
-
-    /// With a known scheme and a readable step, the stable step for a mode
-    /// growing by `rho_step` per step (`phase` radians per row): put in
-    /// `ev.suggested_dt`, and the remedy sentence for the alarm returned.
-    fn remedy(
-        &self,
-        rho_step: f64,
-        phase: f64,
-        clock: &Clock,
-        ev: &mut Evidence,
-    ) -> Option<String> {
-        let (scheme, oc) = self.scheme.as_ref()?;
-        // The step: its column, else simulated time per row over steps per row.
-        let dt = clock
-            .dt
-            .or_else(|| Some(clock.time_per_row? / clock.steps_per_row.filter(|k| *k >= 1.0)?))?;
-        let step = remedy::from_growth(scheme, *oc, rho_step, dt)?;
-        ev.suggested_dt = Some(SuggestedDt {
-            seconds: step.suggested_s,
-            basis: step.basis(scheme, rho_step, remedy::at_nyquist(phase)),
-        });
-        Some(step.sentence(scheme))
-    }
-
     /// Stride after a fit whose growing eigenvalue is not (yet) judged
     /// numerical: the follow stride for a few fits, then doubling.
     fn backoff(&mut self) -> usize {
@@ -365,7 +251,7 @@ impl Growth {
         let Some(analysis) = modes::analyse(&self.scratch, n, m) else {
             return;
         };
-        self.latest = self.estimate(&analysis, clock);
+        self.latest = evidence::estimate(&analysis, clock, self.scheme.as_ref());
         let mut growing = analysis.growing.map(|g| (g, n, analysis.signal_growth_ln));
         let candidate = analysis.spectral_radius.ln() * n as f64 > modes::MIN_WINDOW_GROWTH.ln();
         // Contact, yielding and other changes of regime make a long window
@@ -383,36 +269,14 @@ impl Growth {
         // while it scales a mode at phase θ per row by 2 − 2 cos θ — four at
         // the sign-alternating end, (θ)² at the slow end.
         if growing.is_none() && n >= MIN_ROWS + 2 {
-            let hp = second_difference(&self.scratch, n, m);
+            let hp = modes::second_difference(&self.scratch, n, m);
             growing = modes::analyse(&hp, n - 2, m).and_then(|a| {
                 a.growing
                     .filter(|g| g.mu.arg().abs() >= 0.5 * std::f64::consts::PI)
                     .map(|g| (g, n - 2, a.signal_growth_ln))
             });
         }
-        // Seed the predictor with the newest snapshot of the window.
-        let (q, d) = (analysis.map.q, analysis.map.d);
-        // Newest in slot 0, the one before in slot d − 1, and so on.
-        let mut snap = vec![0.0; q * d];
-        let mut y = vec![0.0; q];
-        for lag in 0..d.min(n) {
-            let r = n - 1 - lag;
-            analysis
-                .map
-                .channels(&self.scratch[r * m..(r + 1) * m], &mut y);
-            let slot = (d - lag) % d;
-            snap[slot * q..(slot + 1) * q].copy_from_slice(&y);
-        }
-        let floor = 1e-9 * analysis.signal_rms;
-        let base = analysis.misfit_rms.max(floor);
-        self.model = Some(Model {
-            snap,
-            head: 0,
-            misfit2: base * base,
-            base2: base * base,
-            y,
-            analysis,
-        });
+        self.model = Some(Model::seed(analysis, &self.scratch, n, m));
         match growing {
             Some((g, n, signal)) => self.judge(g, line, n, signal, clock, out),
             None => {
@@ -470,8 +334,8 @@ impl Growth {
             balance_error: self.balance_rel,
             ..Evidence::default()
         };
-        ev.stability_margin = self.margin_of_growth(rho_step);
-        let remedy = self.remedy(rho_step, phase, clock, &mut ev);
+        ev.stability_margin = evidence::margin_of_growth(self.scheme.as_ref(), rho_step);
+        let remedy = evidence::remedy(self.scheme.as_ref(), rho_step, phase, clock, &mut ev);
         let tpr = clock.time_per_row.filter(|v| *v > 0.0);
         if let Some(tpr) = tpr {
             ev.growth_rate_per_s = Some(rho_out.ln() / tpr);
@@ -494,7 +358,7 @@ impl Growth {
         // While the same mode is followed (an eigenvalue close to the last
         // one), later windows no longer reach back to where it started: keep
         // the earliest onset seen.
-        let same = self.followed.is_some_and(|m| same_mode(m, g.mu));
+        let same = self.followed.is_some_and(|m| modes::same_mode(m, g.mu));
         if same
             && let Some(prev) = self.evidence.onset_line
             && prev < onset.round() as u64
@@ -582,7 +446,7 @@ impl Growth {
         let confirmed = numerical
             && self
                 .candidate
-                .is_some_and(|(mu, at)| same_mode(mu, g.mu) && line - at <= CONFIRM_WITHIN);
+                .is_some_and(|(mu, at)| modes::same_mode(mu, g.mu) && line - at <= CONFIRM_WITHIN);
         self.candidate = numerical.then_some((g.mu, line));
         // A mode judged numerical is followed closely; one that may be
         // physical less often each time, until energy is created (a per-row
@@ -620,90 +484,6 @@ impl Growth {
             });
         }
     }
-}
-
-/// Rows `n` × `m` (row-major) → their second differences, `n − 2` rows.
-fn second_difference(rows: &[f64], n: usize, m: usize) -> Vec<f64> {
-    (2..n)
-        .flat_map(|i| {
-            (0..m)
-                .map(move |j| rows[i * m + j] - 2.0 * rows[(i - 1) * m + j] + rows[(i - 2) * m + j])
-        })
-        .collect()
-}
-
-/// What made a growing mode numerical.
-struct Signature {
-    alternating: bool,
-    created: bool,
-    /// The mode's growth past the response the run had before it.
-    outgrown: Option<f64>,
-}
-
-fn critical_message(
-    ev: &Evidence,
-    k: f64,
-    stride_known: bool,
-    sig: Signature,
-    remedy: Option<(String, Option<f64>)>,
-) -> String {
-    let mut s = String::from("Numerical instability: ");
-    s += if sig.alternating {
-        "a sign-alternating mode"
-    } else if sig.outgrown.is_some() {
-        "a mode"
-    } else {
-        "an oscillating mode"
-    };
-    if stride_known {
-        if let Some(r) = ev.growth_per_step {
-            s += &format!(" grows ×{r:.4} per solver step");
-        }
-        if k > 1.5 {
-            s += &format!(" (about {k:.0} steps per output)");
-        }
-    } else if let Some(r) = ev.growth_per_output {
-        s += &format!(
-            " grows ×{r:.4} per output row (the file does not say how many solver steps a row is)"
-        );
-    }
-    if let Some(x) = sig.outgrown {
-        s += &format!(", steadily, to {x:.1e} times the largest response the run wrote before it");
-    }
-    let created = sig.created;
-    if created {
-        s += " while the energy balance shows energy created";
-    }
-    if let Some(m) = ev.stability_margin {
-        s += &format!(
-            " (stability margin {:+.1} %: the step is past the scheme's limit for this mode)",
-            m * 100.0
-        );
-    }
-    if let Some(l) = ev.onset_line {
-        s += &format!("; it started near line {l}");
-    }
-    if let Some(f) = super::forecast::describe(ev) {
-        s += &format!("; {f}");
-    }
-    s += ".";
-    if let Some(t) = ev.onset_time {
-        s += &format!(" Restart files written after t = {t:.6e} carry the growing mode.");
-    }
-    // The remedy, and where to resume: before the onset, or from the start
-    // of the segment when the mode grew from there.
-    if let Some((r, segment_start)) = remedy {
-        s += &format!(" {r}");
-        match ev.onset_time {
-            Some(t) if segment_start.is_none_or(|t0| t > t0) => {
-                s += &format!("; resume from a restart written before t = {t:.6e}");
-            }
-            Some(_) => s += "; the mode grows from the start of this run: rerun it from there",
-            None => {}
-        }
-        s += ".";
-    }
-    s
 }
 
 impl Detector for Growth {
